@@ -1,0 +1,129 @@
+//! The command line: one file per command.
+//!
+//! Each command file defines its clap `Args` and a `run` function that calls
+//! the library, prints, and returns an exit code. Errors of every layer are
+//! turned into a [`CliError`] here, which fixes the exit code (DESIGN.md:
+//! 2 bad usage or input, 70 internal error) and prints one `error:` line.
+
+pub mod common;
+mod compare;
+mod coverage;
+mod equiv;
+mod exact;
+mod generate;
+mod inspect;
+mod library;
+mod map;
+mod merge;
+mod sweep;
+
+use clap::{Parser, Subcommand};
+use std::process::ExitCode;
+
+/// Exit code: success (for `equiv`, proven equivalent).
+pub const EXIT_OK: u8 = 0;
+/// Exit code: a negative answer (not equivalent; library has errors).
+pub const EXIT_NEGATIVE: u8 = 1;
+/// Exit code: bad usage or bad input.
+pub const EXIT_BAD_INPUT: u8 = 2;
+/// Exit code: undecided (a resource limit stopped a proof).
+pub const EXIT_UNDECIDED: u8 = 3;
+/// Exit code: internal error (a bug; please report it).
+pub const EXIT_INTERNAL: u8 = 70;
+
+/// An error that ends a command.
+#[derive(Debug, thiserror::Error)]
+pub enum CliError {
+    /// Bad usage or bad input: exit code 2.
+    #[error("{0}")]
+    Input(String),
+    /// A bug in ribbonmap: exit code 70.
+    #[error("internal error: {0} (this is a bug in ribbonmap; please report it with the input that caused it)")]
+    Internal(String),
+}
+
+impl CliError {
+    /// The process exit code for this error.
+    pub fn exit_code(&self) -> u8 {
+        match self {
+            CliError::Input(_) => EXIT_BAD_INPUT,
+            CliError::Internal(_) => EXIT_INTERNAL,
+        }
+    }
+}
+
+impl From<crate::diag::SourceError> for CliError {
+    fn from(e: crate::diag::SourceError) -> Self {
+        CliError::Input(e.to_string())
+    }
+}
+
+/// Result of a command: the exit code to return.
+pub type CmdResult = Result<u8, CliError>;
+
+/// Technology mapping and evaluation for libraries of multi-input
+/// conductance gates.
+#[derive(Parser, Debug)]
+#[command(name = "ribbonmap", version, about, long_about = None)]
+pub struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand, Debug)]
+enum Command {
+    /// Summarise a netlist: ports, storage, node counts, depth.
+    Inspect(inspect::Args),
+    /// Map a netlist onto a cell library and report its costs.
+    Map(map::Args),
+    /// Prove two netlists equivalent or find an input that tells them apart.
+    Equiv(equiv::Args),
+    /// Find a provably smallest network of library cells for a small function.
+    Exact(exact::Args),
+    /// Tabulate how many cells every small function needs on each library.
+    Coverage(coverage::Args),
+    /// Map netlists on several libraries and compare the results side by side.
+    Compare(compare::Args),
+    /// Run every job of a sweep plan and append the results to a file.
+    Sweep(sweep::Args),
+    /// Combine sweep result files and print comparison tables.
+    Merge(merge::Args),
+    /// Write a parameterised benchmark circuit.
+    Generate(generate::Args),
+    /// List, show or check cell libraries.
+    Library(library::Args),
+}
+
+/// Parses the command line, runs the command and maps errors to exit codes.
+pub fn main() -> ExitCode {
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(e) => {
+            let code = match e.kind() {
+                clap::error::ErrorKind::DisplayHelp | clap::error::ErrorKind::DisplayVersion => 0,
+                _ => EXIT_BAD_INPUT,
+            };
+            let _ = e.print();
+            return ExitCode::from(code);
+        }
+    };
+    let result = match cli.command {
+        Command::Inspect(a) => inspect::run(a),
+        Command::Map(a) => map::run(a),
+        Command::Equiv(a) => equiv::run(a),
+        Command::Exact(a) => exact::run(a),
+        Command::Coverage(a) => coverage::run(a),
+        Command::Compare(a) => compare::run(a),
+        Command::Sweep(a) => sweep::run(a),
+        Command::Merge(a) => merge::run(a),
+        Command::Generate(a) => generate::run(a),
+        Command::Library(a) => library::run(a),
+    };
+    match result {
+        Ok(code) => ExitCode::from(code),
+        Err(e) => {
+            eprintln!("error: {e}");
+            ExitCode::from(e.exit_code())
+        }
+    }
+}

@@ -1,0 +1,15 @@
+//! ribbonmap maps Boolean networks onto libraries of multi-input conductance
+//! gates and reports what those gates buy on real circuits.
+
+pub mod cli;
+pub mod diag;
+pub mod equiv;
+pub mod exact;
+pub mod generate;
+pub mod io;
+pub mod library;
+pub mod mapper;
+pub mod netlist;
+pub mod network;
+pub mod study;
+pub mod truth;

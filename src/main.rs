@@ -1,0 +1,5 @@
+//! The `ribbonmap` command: a thin shell over [`ribbonmap::cli::main`].
+
+fn main() -> std::process::ExitCode {
+    ribbonmap::cli::main()
+}
