@@ -5,6 +5,7 @@ pub mod cli;
 pub mod diag;
 pub mod equiv;
 pub mod exact;
+pub mod fsutil;
 pub mod generate;
 pub mod io;
 pub mod library;

@@ -15,6 +15,7 @@ mod inspect;
 mod library;
 mod map;
 mod merge;
+pub mod netlist_args;
 mod sweep;
 
 use clap::{Parser, Subcommand};
