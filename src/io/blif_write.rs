@@ -42,10 +42,11 @@ pub fn write_blif(net: &Network) -> String {
         };
         match &s.clock {
             Some(clock) => {
-                let kind = match s.kind.as_deref() {
-                    Some(k @ ("fe" | "re" | "ah" | "al" | "as")) => k,
-                    _ => "re",
-                };
+                let kind = s
+                    .kind
+                    .as_deref()
+                    .filter(|k| matches!(*k, "fe" | "re" | "ah" | "al" | "as"))
+                    .unwrap_or("re");
                 let _ = writeln!(out, ".latch {d} {name} {kind} {clock} {init}");
             }
             None => {

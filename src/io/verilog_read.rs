@@ -143,9 +143,9 @@ impl<'a, 'm, 'o> Elaborator<'a, 'm, 'o> {
         }
     }
 
-    fn vector<'d>(
+    fn vector(
         &self,
-        scope: &'d Scope,
+        scope: &Scope,
         name: &str,
         loc: Loc,
     ) -> Result<(i64, i64), SourceError> {
