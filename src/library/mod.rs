@@ -6,6 +6,18 @@
 //! validation live in this module's children, the built-in libraries in
 //! `libraries/` at the crate root.
 
+mod builtin;
+pub mod completeness;
+mod error;
+mod hash;
+mod load;
+mod positions;
+
+pub use builtin::builtin_text;
+pub use error::{LibraryError, LibraryProblem};
+pub use hash::fnv1a;
+pub use load::{FORMAT, MAX_CELL_INPUTS};
+
 use serde::{Deserialize, Serialize};
 
 /// Units the library's numbers are given in; reports print them.
