@@ -717,3 +717,32 @@ fn kind(value: &Value) -> &'static str {
         Value::Object(_) => "an object",
     }
 }
+
+/// The function of each cell as the file writes it (`function` text, or
+/// `truth` text), by cell name, in file order; cells without either are
+/// left out. For display (`ribbonmap library show`); the text should be a
+/// library that [`Library::from_json_str`] accepted.
+pub fn function_texts(text: &str) -> Vec<(String, String)> {
+    let Ok(root) = serde_json::from_str::<Value>(text) else {
+        return Vec::new();
+    };
+    let Some(cells) = root.get("cells").and_then(Value::as_array) else {
+        return Vec::new();
+    };
+    cells
+        .iter()
+        .filter_map(|c| {
+            let name = c.get("name")?.as_str()?.to_string();
+            let function = c
+                .get("function")
+                .and_then(Value::as_str)
+                .map(str::to_string)
+                .or_else(|| {
+                    c.get("truth")
+                        .and_then(Value::as_str)
+                        .map(|t| format!("truth {t}"))
+                })?;
+            Some((name, function))
+        })
+        .collect()
+}
