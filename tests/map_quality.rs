@@ -156,3 +156,28 @@ fn mapping_is_deterministic() {
     assert_eq!(a.write_verilog(&lib), b.write_verilog(&lib));
     assert_eq!(a.write_blif(&lib), b.write_blif(&lib));
 }
+
+/// ISCAS-85 c17 is six NAND2 gates (Hansen et al. 1999, via PROVENANCE.md):
+/// mapped for area onto {INV, NAND2, NOR2} it needs no more than 6 x 4
+/// transistors.
+#[test]
+fn c17_built_from_nands_maps_onto_six_nand2() {
+    let lib = nand_nor_inv();
+    let mut net = Network::new("c17");
+    let i: Vec<_> = ["N1", "N2", "N3", "N6", "N7"]
+        .iter()
+        .map(|n| net.add_input(*n).unwrap())
+        .collect();
+    let (n1, n2, n3, n6, n7) = (i[0], i[1], i[2], i[3], i[4]);
+    let n10 = net.nand(n1, n3);
+    let n11 = net.nand(n3, n6);
+    let n16 = net.nand(n2, n11);
+    let n19 = net.nand(n11, n7);
+    let n22 = net.nand(n10, n16);
+    let n23 = net.nand(n16, n19);
+    net.add_output("N22", n22).unwrap();
+    net.add_output("N23", n23).unwrap();
+    let mapped = map_checked(&net, &lib, Goal::Area);
+    eprintln!("{}", mapped.write_verilog(&lib));
+    assert!(mapped.area(&lib) <= 24.0, "{}", mapped.area(&lib));
+}

@@ -481,14 +481,22 @@ impl<'a> Cover<'a> {
     }
 
     fn arrival_of(&self, node: usize, phase: usize, choice: u32) -> f32 {
+        self.cost_of(node, phase, choice).0
+    }
+
+    /// Arrival and area flow of `choice` for `node`'s `phase`.
+    fn cost_of(&self, node: usize, phase: usize, choice: u32) -> (f32, f32) {
         match choice {
-            NONE => f32::INFINITY,
-            FREE => 0.0,
-            INVERT => self.arrival[2 * node + 1 - phase] + self.inverter_delay(node),
-            c => {
-                self.evaluate(node, (c >> 2) as usize, self.implementation_of(c, phase))
-                    .0
+            NONE => (f32::INFINITY, f32::INFINITY),
+            FREE => (0.0, 0.0),
+            INVERT => {
+                let o = 2 * node + 1 - phase;
+                (
+                    self.arrival[o] + self.inverter_delay(node),
+                    self.flow[o] + self.inverter_area / self.fanout_estimate[node],
+                )
             }
+            c => self.evaluate(node, (c >> 2) as usize, self.implementation_of(c, phase)),
         }
     }
 
@@ -510,11 +518,13 @@ impl<'a> Cover<'a> {
             };
             for phase in order {
                 let i = 2 * node + phase;
-                if self.refs[i] == 0 {
-                    continue;
-                }
+                // An unreferenced phase is chosen as if it were referenced, so
+                // a fanout that later picks it finds its best cone.
+                let referenced = self.refs[i] > 0;
                 let current = self.choice[i];
-                self.dereference(node, phase, &mut stack);
+                if referenced {
+                    self.dereference(node, phase, &mut stack);
+                }
                 options.clear();
                 for cut in self.cuts.cuts(node) {
                     let slot = self.cuts.slot(cut);
@@ -532,9 +542,10 @@ impl<'a> Cover<'a> {
                 let mut best = current;
                 let mut best_area = f32::INFINITY;
                 let mut best_arrival = f32::INFINITY;
+                let mut best_flow = f32::INFINITY;
                 let req = self.required[i];
                 for &opt in &options {
-                    let arrival = self.arrival_of(node, phase, opt);
+                    let (arrival, flow) = self.cost_of(node, phase, opt);
                     self.choice[i] = opt;
                     let area = self.reference(node, phase, &mut stack);
                     self.dereference(node, phase, &mut stack);
@@ -546,17 +557,23 @@ impl<'a> Cover<'a> {
                         arrival < best_arrival - EPS
                     } else {
                         area < best_area - EPS
-                            || (area <= best_area + EPS && arrival < best_arrival - EPS)
+                            || (area <= best_area + EPS
+                                && (flow < best_flow - EPS
+                                    || (flow <= best_flow + EPS && arrival < best_arrival - EPS)))
                     };
                     if take {
                         best = opt;
                         best_area = area;
                         best_arrival = arrival;
+                        best_flow = flow;
                     }
                 }
                 self.choice[i] = best;
-                self.reference(node, phase, &mut stack);
+                if referenced {
+                    self.reference(node, phase, &mut stack);
+                }
                 self.arrival[i] = best_arrival;
+                self.flow[i] = best_flow;
             }
             // Keep the arrival of an unreferenced or derived phase current.
             for phase in 0..2 {

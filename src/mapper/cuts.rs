@@ -263,6 +263,27 @@ impl CutStore {
                 }
             }
         }
+        // The cut of the fanins is always kept: its function is the node's
+        // own AND, XOR or majority, which the library is known to match.
+        let mut direct = [0u32; 6];
+        let mut size = 0;
+        for f in fanins {
+            direct[size] = f.node().0;
+            size += 1;
+        }
+        direct[..size].sort_unstable();
+        let present = kept
+            .iter()
+            .any(|c| c.size as usize == size && c.leaves[..size] == direct[..size]);
+        if !present {
+            kept.push(Candidate {
+                leaves: direct,
+                size: size as u8,
+                sign: signature(&direct[..size]),
+                from: [TRIVIAL; 3],
+                key: (0.0, 0.0),
+            });
+        }
         // Truth tables, support minimisation and matching of the kept cuts.
         for cand in kept.iter() {
             let size = cand.size as usize;

@@ -4,9 +4,10 @@
 //! ([`super::MappedNetlist::to_network`]) and compared with the original,
 //! ports matched by name. [`VerifyMode::Sim`] simulates 10,048 random input
 //! patterns (157 words of 64, SplitMix64 from a fixed seed).
-//! [`VerifyMode::Full`] is meant for the equivalence checker; until it is
-//! wired in here it runs the same simulation and says `simulated`, never
-//! `proven`.
+//! [`VerifyMode::Full`] runs the same simulation, then the equivalence
+//! checker ([`crate::equiv::check`]): `proven` when it proves every output,
+//! a mismatch when it finds a counterexample, and `simulated` when a work
+//! limit leaves some output undecided.
 
 use crate::network::{lit_word, Network, SplitMix64};
 
@@ -51,7 +52,7 @@ pub enum VerifyError {
     #[error("port mismatch: {0}")]
     Ports(String),
     /// An output differs on some input pattern.
-    #[error("output '{output}' differs from the original on a simulated input pattern")]
+    #[error("output '{output}' differs from the original on some input pattern")]
     Mismatch {
         /// Name of the first differing output (or storage element).
         output: String,
@@ -71,9 +72,28 @@ pub fn verify(
 ) -> Result<Verified, VerifyError> {
     match mode {
         VerifyMode::None => Ok(Verified::Skipped),
-        VerifyMode::Sim | VerifyMode::Full => {
+        VerifyMode::Sim => {
             simulate_against(original, mapped, SIM_WORDS, 0x5EED_0F_4A11)?;
             Ok(Verified::Simulated)
+        }
+        VerifyMode::Full => {
+            simulate_against(original, mapped, SIM_WORDS, 0x5EED_0F_4A11)?;
+            let opts = crate::equiv::EquivOptions::default();
+            match crate::equiv::check(original, mapped, &opts) {
+                Ok(crate::equiv::Verdict::Equivalent { .. }) => Ok(Verified::Proven),
+                Ok(crate::equiv::Verdict::Undecided { .. }) => Ok(Verified::Simulated),
+                Ok(crate::equiv::Verdict::Different { counterexample, .. }) => {
+                    Err(VerifyError::Mismatch {
+                        output: counterexample
+                            .differing_outputs
+                            .first()
+                            .cloned()
+                            .unwrap_or_default(),
+                        inputs: counterexample.inputs.into_iter().collect(),
+                    })
+                }
+                Err(e) => Err(VerifyError::Ports(e.to_string())),
+            }
         }
     }
 }
