@@ -17,8 +17,9 @@
 
 use super::cache::{self, CachedClass};
 use super::classes::{enumerate_classes, Transforms};
-use super::gates::GateSpec;
+use super::gates::{gates_from_library, GateSpec};
 use super::synthesize::{synthesize, ExactError, ExactOptions, Objective};
+use crate::library::Library;
 use rayon::prelude::*;
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -112,15 +113,36 @@ pub struct Coverage {
 
 /// Computes the coverage table of `gates` (named `name`) for all functions
 /// of `opts.inputs` inputs, counting cells.
+///
+/// The cache key is a content hash of `gates` ([`cache::gate_set_hash`]).
 pub fn coverage(
     name: &str,
     gates: &[GateSpec],
     opts: &CoverageOptions,
 ) -> Result<Coverage, ExactError> {
+    coverage_keyed(name, gates, cache::gate_set_hash(gates), opts)
+}
+
+/// [`coverage`] of a library's cells, cached under the library's
+/// [`Library::content_hash`].
+pub fn coverage_of_library(lib: &Library, opts: &CoverageOptions) -> Result<Coverage, ExactError> {
+    coverage_keyed(
+        &lib.name,
+        &gates_from_library(lib),
+        format!("lib{:016x}", lib.content_hash()),
+        opts,
+    )
+}
+
+fn coverage_keyed(
+    name: &str,
+    gates: &[GateSpec],
+    hash: String,
+    opts: &CoverageOptions,
+) -> Result<Coverage, ExactError> {
     if !(1..=4).contains(&opts.inputs) {
         return Err(ExactError::TooManyInputs(opts.inputs));
     }
-    let hash = cache::gate_set_hash(gates);
     let transforms = if opts.free_complements {
         Transforms::Npn
     } else {

@@ -36,7 +36,9 @@ pub mod gates;
 mod limits;
 mod synthesize;
 
-pub use coverage::{coverage, ClassCost, Coverage, CoverageOptions, NpnSummary};
+pub use coverage::{
+    coverage, coverage_of_library, ClassCost, Coverage, CoverageOptions, NpnSummary,
+};
 pub use database::{OptimumDatabase, DATABASE_MAX_INPUTS};
 pub use gates::{gates_from_library, GateSpec};
 pub use synthesize::{
