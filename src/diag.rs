@@ -21,7 +21,12 @@ pub struct SourceError {
 
 impl SourceError {
     /// An error at `line`:`column` of `file`.
-    pub fn new(file: impl Into<String>, line: u32, column: u32, message: impl Into<String>) -> Self {
+    pub fn new(
+        file: impl Into<String>,
+        line: u32,
+        column: u32,
+        message: impl Into<String>,
+    ) -> Self {
         SourceError {
             file: file.into(),
             line,
@@ -36,7 +41,11 @@ impl fmt::Display for SourceError {
         if self.line == 0 {
             write!(f, "{}: {}", self.file, self.message)
         } else {
-            write!(f, "{}:{}:{}: {}", self.file, self.line, self.column, self.message)
+            write!(
+                f,
+                "{}:{}:{}: {}",
+                self.file, self.line, self.column, self.message
+            )
         }
     }
 }

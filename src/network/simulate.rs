@@ -100,7 +100,11 @@ impl Network {
             return None;
         }
         let words: Vec<u64> = (0..n).map(|k| exhaustive_word(k, 0)).collect();
-        let mask = if n == 6 { u64::MAX } else { (1u64 << (1 << n)) - 1 };
+        let mask = if n == 6 {
+            u64::MAX
+        } else {
+            (1u64 << (1 << n)) - 1
+        };
         Some(
             self.simulate_outputs(&words)
                 .into_iter()

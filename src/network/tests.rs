@@ -32,7 +32,14 @@ fn strash_stores_identical_logic_once() {
     let m = n.maj(!a, !b, !c);
     let m2 = n.maj(c, b, a);
     assert_eq!(m, !m2);
-    assert_eq!(n.kind_counts(), KindCounts { and: 1, xor: 1, maj: 1 });
+    assert_eq!(
+        n.kind_counts(),
+        KindCounts {
+            and: 1,
+            xor: 1,
+            maj: 1
+        }
+    );
 }
 
 #[test]
@@ -90,7 +97,9 @@ fn from_truth_builds_random_six_input_functions() {
     let mut rng = SplitMix64::new(7);
     for _ in 0..200 {
         let mut n = Network::new("t");
-        let ins: Vec<Lit> = (0..6).map(|k| n.add_input(format!("x{k}")).unwrap()).collect();
+        let ins: Vec<Lit> = (0..6)
+            .map(|k| n.add_input(format!("x{k}")).unwrap())
+            .collect();
         let t = rng.next();
         let lit = n.from_truth(t, &ins);
         let words: Vec<u64> = (0..6).map(|k| exhaustive_word(k, 0)).collect();
@@ -103,7 +112,9 @@ fn cleanup_drops_dangling_logic_and_keeps_ports() {
     let (mut n, [a, b, c]) = three_inputs();
     let used = n.and(a, b);
     let _dangling = n.xor(b, c);
-    let q = n.add_storage("r", Some("clk".into()), InitValue::Zero, None).unwrap();
+    let q = n
+        .add_storage("r", Some("clk".into()), InitValue::Zero, None)
+        .unwrap();
     let next = n.maj(used, q, c);
     n.set_storage_next("r", next).unwrap();
     n.add_output("y", !used).unwrap();
