@@ -65,6 +65,8 @@ fn prefix_adders_are_shallower_than_ripple() {
     let ripple = depth("ripple");
     assert!(depth("kogge-stone") < ripple / 4);
     assert!(depth("brent-kung") < ripple / 2);
+    assert!(depth("carry-lookahead") < ripple);
+    assert!(depth("carry-select") < ripple);
     assert!(depth("kogge-stone") <= depth("brent-kung"));
 }
 

@@ -3,7 +3,9 @@
 //! - ripple: a chain of full adders, each `xor(xor(a, b), c)` and
 //!   `maj(a, b, c)`;
 //! - carry-lookahead: 4-bit blocks whose carries are flat sums of products of
-//!   generate `g = a & b` and propagate `p = a ^ b` signals, blocks chained;
+//!   generate `g = a & b` and propagate `p = a ^ b` signals; each carry is
+//!   the block's own group generate OR (group propagate AND the block's
+//!   incoming carry), so the chain of blocks costs two levels per block;
 //! - Kogge-Stone and Brent-Kung: parallel-prefix carry computation over
 //!   (generate, propagate) pairs with the usual prefix operator
 //!   `(G, P) o (G', P') = (G | P & G', P & P')`, Kogge-Stone with every
@@ -81,16 +83,19 @@ fn lookahead(net: &mut Network, a: &[Lit], b: &[Lit], cin: Lit) -> (Vec<Lit>, Li
         for i in start..end {
             sum.push(net.xor(p[i], carry));
             // c[i+1] = g[i] | p[i] g[i-1] | ... | p[i]..p[start] c[start]
-            let mut terms = Vec::with_capacity(i - start + 2);
+            let mut terms = Vec::with_capacity(i - start + 1);
             for j in (start..=i).rev() {
                 let mut factors: Vec<Lit> = p[j + 1..=i].to_vec();
                 factors.push(g[j]);
                 terms.push(net.and_many(&factors));
             }
-            let mut factors: Vec<Lit> = p[start..=i].to_vec();
-            factors.push(block_carry);
-            terms.push(net.and_many(&factors));
-            carry = net.or_many(&terms);
+            // The block's own generate and propagate are computed in
+            // parallel; the incoming block carry passes through one AND and
+            // one OR, so blocks chain with two levels each.
+            let generate = net.or_many(&terms);
+            let propagate = net.and_many(&p[start..=i]);
+            let through = net.and(propagate, block_carry);
+            carry = net.or(generate, through);
         }
         block_carry = carry;
     }
