@@ -1,16 +1,86 @@
-//! `ribbonmap inspect` (not built yet).
+//! `ribbonmap inspect`: reads a netlist and prints a summary (ports,
+//! storage, node counts by kind, depth, largest output support, largest
+//! fanout) as text or JSON. The numbers come from [`crate::io::summarize`].
 
-use super::{CliError, CmdResult};
+use super::common::{load_library, Format};
+use super::netlist_args::NetlistArgs;
+use super::{CliError, CmdResult, EXIT_OK};
+use crate::io::{summarize, Summary};
+use std::path::PathBuf;
 
 /// Arguments of `ribbonmap inspect`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Arguments (placeholder until the command is built).
-    rest: Vec<String>,
+    /// The netlist to read: a .blif, .v or .bench file, or '-' for standard
+    /// input (then give --input-format).
+    #[arg(value_name = "NETLIST")]
+    pub netlist: PathBuf,
+    /// Report format: 'text' (aligned lines) or 'json' (fields inputs,
+    /// outputs, storage, nodes {and, xor, maj}, depth and more).
+    #[arg(long, value_enum, default_value = "text", value_name = "FORMAT")]
+    pub format: Format,
+    /// Cell library (built-in name or JSON file) whose cells the netlist
+    /// instantiates, for reading mapped netlists. Not needed otherwise.
+    #[arg(long, value_name = "NAME|FILE")]
+    pub lib: Option<String>,
+    #[command(flatten)]
+    pub read: NetlistArgs,
 }
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
-    let _ = args.rest;
-    Err(CliError::Input("'inspect' is not built yet".into()))
+    if !matches!(args.format, Format::Text | Format::Json) {
+        return Err(CliError::Input(
+            format!(
+                "inspect cannot print --format {:?} (expected text or json)",
+                args.format
+            )
+            .to_lowercase(),
+        ));
+    }
+    let library = match &args.lib {
+        Some(spec) => Some(load_library(spec)?),
+        None => None,
+    };
+    let net = args.read.read(&args.netlist, library.as_ref())?;
+    let summary = summarize(&net);
+    match args.format {
+        Format::Json => {
+            let text = serde_json::to_string_pretty(&summary)
+                .map_err(|e| CliError::Internal(format!("cannot encode the summary: {e}")))?;
+            println!("{text}");
+        }
+        _ => print!(
+            "{}",
+            text_report(&summary, &args.netlist.display().to_string())
+        ),
+    }
+    Ok(EXIT_OK)
+}
+
+/// The text report.
+pub fn text_report(s: &Summary, file: &str) -> String {
+    let mut lines = vec![
+        format!("design                  {} ({file})", s.design),
+        format!("inputs                  {}", s.inputs),
+        format!("outputs                 {}", s.outputs),
+        format!("storage elements        {}", s.storage),
+        format!(
+            "logic nodes             {} (and {}, xor {}, maj {})",
+            s.gates, s.nodes.and, s.nodes.xor, s.nodes.maj
+        ),
+        format!("depth                   {}", s.depth),
+    ];
+    if let Some(e) = &s.largest_output_support {
+        lines.push(format!(
+            "largest output support  {} inputs ({})",
+            e.inputs, e.output
+        ));
+    }
+    if let Some(e) = &s.largest_fanout {
+        lines.push(format!("largest fanout          {} ({})", e.fanout, e.node));
+    }
+    let mut out = lines.join("\n");
+    out.push('\n');
+    out
 }

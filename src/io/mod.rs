@@ -33,6 +33,7 @@ mod blif_read;
 mod blif_write;
 mod flat;
 mod names;
+mod summary;
 mod verilog_lex;
 mod verilog_parse;
 mod verilog_read;
@@ -40,6 +41,7 @@ mod verilog_write;
 
 pub use blif_read::IGNORED_COMMANDS as BLIF_IGNORED_COMMANDS;
 pub use blif_write::write_blif;
+pub use summary::{output_supports, summarize, FanoutEntry, Summary, SupportEntry};
 pub use verilog_write::{identifier as verilog_identifier, write_verilog};
 
 use crate::diag::SourceError;

@@ -81,6 +81,9 @@ pub(crate) enum Expr<'a> {
     Repeat(u32, Box<Expr<'a>>, Loc),
     Unary(UnOp, Box<Expr<'a>>, Loc),
     Binary(BinOp, Box<Expr<'a>>, Box<Expr<'a>>, Loc),
+    /// A chain `a op b op c ...` of one associative operator (`&`, `|`, `^`),
+    /// kept flat so long chains do not nest deeply.
+    Chain(BinOp, Vec<Expr<'a>>, Loc),
     Cond(Box<Expr<'a>>, Box<Expr<'a>>, Box<Expr<'a>>, Loc),
 }
 
@@ -96,6 +99,7 @@ impl Expr<'_> {
             | Expr::Repeat(_, _, l)
             | Expr::Unary(_, _, l)
             | Expr::Binary(_, _, _, l)
+            | Expr::Chain(_, _, l)
             | Expr::Cond(_, _, _, l) => *l,
         }
     }
@@ -741,7 +745,14 @@ impl<'a> Parser<'a> {
             };
             self.lx.next_token()?;
             let right = self.binary(level + 1)?;
-            left = Expr::Binary(op, Box::new(left), Box::new(right), t.loc);
+            left = match (op, left) {
+                (BinOp::And | BinOp::Or | BinOp::Xor, Expr::Chain(o, mut parts, l)) if o == op => {
+                    parts.push(right);
+                    Expr::Chain(op, parts, l)
+                }
+                (BinOp::And | BinOp::Or | BinOp::Xor, l) => Expr::Chain(op, vec![l, right], t.loc),
+                (_, l) => Expr::Binary(op, Box::new(l), Box::new(right), t.loc),
+            };
         }
         Ok(left)
     }

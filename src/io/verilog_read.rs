@@ -303,6 +303,35 @@ impl<'a, 'm, 'o> Elaborator<'a, 'm, 'o> {
                     }
                 }
             }
+            Expr::Chain(op, parts, loc) => {
+                let g = match op {
+                    BinOp::And => GateOp::And,
+                    BinOp::Or => GateOp::Or,
+                    _ => GateOp::Xor,
+                };
+                let mut operands: Vec<Vec<Sig>> = Vec::with_capacity(parts.len());
+                for p in parts {
+                    operands.push(self.eval(scope, p)?);
+                }
+                let width = operands.iter().map(Vec::len).max().unwrap_or(1);
+                for (k, p) in parts.iter().enumerate() {
+                    if operands[k].len() != width {
+                        if matches!(p, Expr::Const(..)) {
+                            operands[k].resize(width, Sig::FALSE);
+                        } else {
+                            return Err(self.err(p.loc(), format!("width mismatch: {} bits against {width} bits (expected equal widths)", operands[k].len())));
+                        }
+                    }
+                }
+                let mut column = Vec::with_capacity(operands.len());
+                (0..width)
+                    .map(|bit| {
+                        column.clear();
+                        column.extend(operands.iter().map(|o| o[bit]));
+                        self.flat.gate(g, false, &column, *loc)
+                    })
+                    .collect()
+            }
             Expr::Cond(c, t, f, loc) => {
                 let cv = self.eval(scope, c)?;
                 let s = self.reduce(GateOp::Or, &cv, *loc);
