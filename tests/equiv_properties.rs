@@ -16,7 +16,7 @@ fn random_network(rng: &mut SplitMix64, inputs: usize, gates: usize, outputs: us
     let mut signals: Vec<Lit> = (0..inputs)
         .map(|k| net.add_input(format!("x{k}")).unwrap())
         .collect();
-    let mut pick = |rng: &mut SplitMix64, signals: &Vec<Lit>| {
+    let pick = |rng: &mut SplitMix64, signals: &Vec<Lit>| {
         // Favour recent signals so the networks get deep.
         let n = signals.len() as u64;
         let back = rng.below(n.min(8));

@@ -20,7 +20,9 @@
 //! - `counting`: parity, popcount and majority;
 //! - `select`: comparator, multiplexer, decoder and barrel shifter;
 //! - `hamming`: single-error-correcting (and SEC-DED) encoders and decoders;
-//! - `alu`: an n-bit ALU over the adder builders.
+//! - `alu`: an n-bit ALU over the adder builders;
+//! - `write`: file text with a header comment, and the shipped benchmark
+//!   set under `benchmarks/`.
 //!
 //! Port contract (DESIGN.md): inputs are declared as `a[0..n-1]`, then
 //! `b[0..n-1]`, then any others (carry-in last); outputs are one bus, least
@@ -37,6 +39,12 @@ mod hamming;
 mod multiplier;
 mod ports;
 mod select;
+mod write;
+
+pub use write::{
+    benchmark_readme, benchmark_set, command_line, header, render, write_benchmarks, write_circuit,
+    Benchmark, WriteError,
+};
 
 use crate::network::{Network, NetworkError};
 use std::fmt;
