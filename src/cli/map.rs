@@ -135,14 +135,40 @@ pub fn run(args: Args) -> CmdResult {
     seconds.insert("write".to_string(), t.elapsed().as_secs_f64());
 
     let timing = analyze_timing(&netlist, &lib);
+    // Switching-activity energy and static power (study::mapped_energy).
+    let t = Instant::now();
+    let energy =
+        crate::study::mapped_energy(&netlist, &lib, &crate::study::power::Stimulus::default())
+            .map_err(|e| CliError::Internal(format!("cannot estimate energy: {e}")))?;
+    seconds.insert("energy".to_string(), t.elapsed().as_secs_f64());
     let report = Report::new(&netlist, &lib, goal.name(), &timing, verified, seconds);
     match args.format {
         Format::Json => {
-            let text = serde_json::to_string_pretty(&report)
+            let mut value = serde_json::to_value(&report)
+                .map_err(|e| CliError::Internal(format!("cannot encode the report: {e}")))?;
+            if let serde_json::Value::Object(m) = &mut value {
+                m.insert("energy_per_op".into(), energy.energy_per_op.into());
+                m.insert("static_power".into(), energy.static_power.into());
+                if let Some(serde_json::Value::Object(units)) = m.get_mut("units") {
+                    units.insert("energy".into(), lib.units.energy.clone().into());
+                    units.insert("power".into(), lib.units.power.clone().into());
+                }
+            }
+            let text = serde_json::to_string_pretty(&value)
                 .map_err(|e| CliError::Internal(format!("cannot encode the report: {e}")))?;
             println!("{text}");
         }
-        _ => print!("{}", report.to_text()),
+        _ => {
+            let energy_lines = format!(
+                "energy    {:.4} {} per operation\nstatic    {:.4} {}\n",
+                energy.energy_per_op, lib.units.energy, energy.static_power, lib.units.power
+            );
+            let text = report.to_text();
+            match text.find("verified  ") {
+                Some(at) => print!("{}{energy_lines}{}", &text[..at], &text[at..]),
+                None => print!("{text}{energy_lines}"),
+            }
+        }
     }
     Ok(EXIT_OK)
 }
