@@ -5,7 +5,9 @@
 //! Compression replaces three bits of a column by a full adder (sum stays,
 //! carry moves one column up) or two by a half adder, until every column
 //! holds at most two bits; a ripple adder then adds the two rows. Wallace
-//! compresses every column as far as it can in each stage; Dadda compresses
+//! compresses every column as far as it can in each stage (full adders on
+//! triples, a half adder on a leftover pair only in columns taller than
+//! two); Dadda compresses
 //! only as much as needed to reach the next height of the sequence
 //! 2, 3, 4, 6, 9, 13, ... (each term floor(1.5 x) the previous one).
 
