@@ -20,8 +20,20 @@ pub enum Format {
 }
 
 /// Loads a library given as a built-in name or a file path.
+///
+/// A built-in name (see [`Library::builtin_names`]) wins; anything else is
+/// read as a library file. Every failure is bad input (exit code 2), with
+/// the first problem's file, line and column.
 pub fn load_library(spec: &str) -> Result<Library, CliError> {
-    Err(CliError::Input(format!(
-        "cannot load library '{spec}': library loading is not built yet"
-    )))
+    if let Some(lib) = Library::builtin(spec) {
+        return Ok(lib);
+    }
+    let path = std::path::Path::new(spec);
+    if !path.exists() && !spec.contains('/') && !spec.contains('.') {
+        return Err(CliError::Input(format!(
+            "unknown library '{spec}': not a built-in ({}) and no such file",
+            Library::builtin_names().join(", ")
+        )));
+    }
+    Library::load(path).map_err(|e| CliError::Input(e.to_string()))
 }

@@ -1,16 +1,157 @@
-//! `ribbonmap compare` (not built yet).
+//! `ribbonmap compare`: map netlists on several libraries and print the
+//! results side by side, with ratios to the first library.
 
-use super::{CliError, CmdResult};
+use super::common::{load_library, Format};
+use super::netlist_args::NetlistArgs;
+use super::{CliError, CmdResult, EXIT_OK};
+use crate::study::evaluate::{compare, EvaluateOptions};
+use crate::study::power::Stimulus;
+use crate::study::table::{render, ComparisonTable, Metric, TableFormat};
+use crate::study::{render_svg, Goal, StudyError, StudyRecord, VerifyMode};
+use std::path::{Path, PathBuf};
 
 /// Arguments of `ribbonmap compare`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Arguments (placeholder until the command is built).
-    rest: Vec<String>,
+    /// Netlists to map (.blif, .v, .bench).
+    #[arg(required = true, value_name = "NETLIST")]
+    netlists: Vec<PathBuf>,
+    /// A library (built-in name or file); repeat for each library. Ratios
+    /// are relative to the first. Default: ribbon3.
+    #[arg(long = "lib", value_name = "NAME|FILE")]
+    libs: Vec<String>,
+    /// Mapping goal, the same for every library.
+    #[arg(long, value_enum, default_value = "balanced")]
+    goal: Goal,
+    /// How each mapping is checked: a proof (full), random simulation (sim)
+    /// or not at all (none). The table says which was done.
+    #[arg(long, value_enum, default_value = "full")]
+    verify: VerifyMode,
+    /// Largest cut of the mapper.
+    #[arg(long = "cut-size", value_name = "K")]
+    cut_size: Option<u32>,
+    /// Priority cuts kept per node.
+    #[arg(long = "cuts-per-node", value_name = "C")]
+    cuts_per_node: Option<u32>,
+    /// Probability that an input is 1 in the energy simulation.
+    #[arg(long = "input-probability", default_value_t = 0.5, value_name = "P")]
+    input_probability: f64,
+    /// Random patterns simulated for energy.
+    #[arg(long, default_value_t = crate::study::power::DEFAULT_PATTERNS)]
+    patterns: u64,
+    /// Table format.
+    #[arg(long, value_enum, default_value = "text")]
+    format: Format,
+    /// Also write a grouped bar chart of the ratios to this SVG file.
+    #[arg(long, value_name = "OUT.svg")]
+    chart: Option<PathBuf>,
+    /// Metric the chart shows.
+    #[arg(long = "chart-metric", value_enum, default_value = "cells")]
+    chart_metric: Metric,
+    /// Worker threads (default: one per core).
+    #[arg(long, value_name = "N")]
+    jobs: Option<usize>,
+    #[command(flatten)]
+    read: NetlistArgs,
+}
+
+/// The table format for a command-line format.
+pub(super) fn table_format(format: Format) -> TableFormat {
+    match format {
+        Format::Text => TableFormat::Text,
+        Format::Json => TableFormat::Json,
+        Format::Csv => TableFormat::Csv,
+        Format::Markdown => TableFormat::Markdown,
+        Format::Latex => TableFormat::Latex,
+    }
+}
+
+/// A study error as a command error (input → exit 2, internal → 70).
+pub(super) fn cli_error(e: StudyError) -> CliError {
+    match e {
+        StudyError::Input(m) => CliError::Input(m),
+        StudyError::Internal(m) => CliError::Internal(m),
+    }
+}
+
+/// Prints the table of `records` and writes the chart if asked.
+pub(super) fn print_table(
+    records: &[StudyRecord],
+    baseline: Option<&str>,
+    format: Format,
+    chart: Option<&Path>,
+    metric: Metric,
+) -> Result<(), CliError> {
+    let table = ComparisonTable::build(records, baseline);
+    print!("{}", render(&table, table_format(format)));
+    if let Some(path) = chart {
+        crate::fsutil::write_atomic(path, render_svg(&table, metric).as_bytes())
+            .map_err(|e| CliError::Input(format!("cannot write {}: {e}", path.display())))?;
+    }
+    Ok(())
 }
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
-    let _ = args.rest;
-    Err(CliError::Input("'compare' is not built yet".into()))
+    let specs = if args.libs.is_empty() {
+        vec!["ribbon3".to_string()]
+    } else {
+        args.libs.clone()
+    };
+    let mut libraries = Vec::new();
+    for spec in &specs {
+        libraries.push(load_library(spec)?);
+    }
+    for (i, lib) in libraries.iter().enumerate() {
+        if libraries[..i].iter().any(|l| l.name == lib.name) {
+            return Err(CliError::Input(format!(
+                "library '{}' is given twice",
+                lib.name
+            )));
+        }
+    }
+    if !(0.0..=1.0).contains(&args.input_probability) {
+        return Err(CliError::Input(format!(
+            "--input-probability {} is not between 0 and 1",
+            args.input_probability
+        )));
+    }
+    let mut benchmarks = Vec::new();
+    for path in &args.netlists {
+        let network = args.read.read(path, None)?;
+        let name = path
+            .file_stem()
+            .map(|s| s.to_string_lossy().to_string())
+            .unwrap_or_else(|| path.display().to_string());
+        benchmarks.push((name, network));
+    }
+    let options = EvaluateOptions {
+        goal: args.goal,
+        cut_size: args.cut_size,
+        cuts_per_node: args.cuts_per_node,
+        verify: args.verify,
+        stimulus: Stimulus::Random {
+            probability: args.input_probability,
+            patterns: args.patterns,
+            seed: 1,
+        },
+    };
+    let mut pool = rayon::ThreadPoolBuilder::new();
+    if let Some(n) = args.jobs {
+        pool = pool.num_threads(n.max(1));
+    }
+    let pool = pool
+        .build()
+        .map_err(|e| CliError::Internal(format!("cannot start worker threads: {e}")))?;
+    let records = pool
+        .install(|| compare(&benchmarks, &libraries, &options))
+        .map_err(cli_error)?;
+    print_table(
+        &records,
+        None,
+        args.format,
+        args.chart.as_deref(),
+        args.chart_metric,
+    )?;
+    Ok(EXIT_OK)
 }

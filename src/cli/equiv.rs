@@ -1,16 +1,188 @@
-//! `ribbonmap equiv` (not built yet).
+//! `ribbonmap equiv`: prove two netlists equivalent or show an input that
+//! tells them apart.
+//!
+//! Exit codes (DESIGN.md contract): 0 equivalent, 1 different (with a
+//! counterexample), 3 undecided, 2 bad input.
 
-use super::{CliError, CmdResult};
+use std::path::{Path, PathBuf};
+
+use serde_json::{json, Map, Value};
+
+use super::common::{load_library, Format};
+use super::netlist_args::NetlistArgs;
+use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK, EXIT_UNDECIDED};
+use crate::equiv::{
+    check_with_stats, parse_port_map, Counterexample, EquivError, EquivOptions, EquivReport,
+    PortMatching, Verdict,
+};
 
 /// Arguments of `ribbonmap equiv`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Arguments (placeholder until the command is built).
-    rest: Vec<String>,
+    /// The first netlist (its port names are the ones reported).
+    pub netlist_a: PathBuf,
+    /// The second netlist.
+    pub netlist_b: PathBuf,
+    /// Cell library for mapped netlists that instantiate its cells (built-in
+    /// name or file; default ribbon3).
+    #[arg(long, value_name = "NAME|FILE")]
+    pub lib: Option<String>,
+    /// How ports are paired: `name`, `order`, or a port-map file with one
+    /// `name_in_a name_in_b` pair a line (`#` comments; unlisted ports pair
+    /// by name).
+    #[arg(long, value_name = "name|order|PORTMAP", default_value = "name")]
+    pub ports: String,
+    /// Work limit of one SAT call in conflicts (0: none).
+    #[arg(long, value_name = "N", default_value_t = EquivOptions::default().conflict_limit)]
+    pub conflict_limit: u64,
+    /// Report format.
+    #[arg(long, value_enum, default_value = "text")]
+    pub format: Format,
+    /// Reader options shared by the commands that read netlists.
+    #[command(flatten)]
+    pub netlist: NetlistArgs,
+}
+
+fn port_matching(spec: &str) -> Result<PortMatching, CliError> {
+    match spec {
+        "name" => Ok(PortMatching::ByName),
+        "order" => Ok(PortMatching::ByOrder),
+        file => {
+            let text = std::fs::read_to_string(file)
+                .map_err(|e| CliError::Input(format!("{file}: cannot read the port map: {e}")))?;
+            Ok(PortMatching::Map(parse_port_map(&text, file)?))
+        }
+    }
 }
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
-    let _ = args.rest;
-    Err(CliError::Input("'equiv' is not built yet".into()))
+    if !matches!(args.format, Format::Text | Format::Json) {
+        return Err(CliError::Input(
+            "equiv writes only --format text or json".into(),
+        ));
+    }
+    let ports = port_matching(&args.ports)?;
+    let library = load_library(args.lib.as_deref().unwrap_or("ribbon3"))?;
+    let a = args.netlist.read(&args.netlist_a, Some(&library))?;
+    let b = args.netlist.read(&args.netlist_b, Some(&library))?;
+    let opts = EquivOptions {
+        ports,
+        conflict_limit: args.conflict_limit,
+        ..EquivOptions::default()
+    };
+    let report = check_with_stats(&a, &b, &opts).map_err(|e| match e {
+        EquivError::Internal(m) => CliError::Internal(m),
+        other => CliError::Input(format!(
+            "cannot compare {} with {}: {other}",
+            args.netlist_a.display(),
+            args.netlist_b.display()
+        )),
+    })?;
+    match args.format {
+        Format::Json => println!(
+            "{}",
+            serde_json::to_string_pretty(&to_json(&report)).expect("JSON values serialise")
+        ),
+        _ => print!("{}", to_text(&report, &args.netlist_a, &args.netlist_b)),
+    }
+    Ok(match report.verdict {
+        Verdict::Equivalent { .. } => EXIT_OK,
+        Verdict::Different { .. } => EXIT_NEGATIVE,
+        Verdict::Undecided { .. } => EXIT_UNDECIDED,
+    })
+}
+
+fn counterexample_json(cex: &Counterexample) -> Value {
+    let inputs: Map<String, Value> = cex
+        .inputs
+        .iter()
+        .map(|(n, &v)| (n.clone(), json!(v as u8)))
+        .collect();
+    let values: Map<String, Value> = cex
+        .differing_outputs
+        .iter()
+        .zip(&cex.output_values)
+        .map(|(n, &(x, y))| (n.clone(), json!({"a": x as u8, "b": y as u8})))
+        .collect();
+    json!({
+        "inputs": inputs,
+        "differing_outputs": cex.differing_outputs,
+        "output_values": values,
+    })
+}
+
+/// The JSON report (fields `verdict`, `outputs_checked`, `counterexample`
+/// are the DESIGN.md contract; `undecided_outputs` and `stats` are extras).
+pub fn to_json(report: &EquivReport) -> Value {
+    let mut obj = Map::new();
+    obj.insert("verdict".into(), json!(report.verdict.name()));
+    obj.insert(
+        "outputs_checked".into(),
+        json!(report.verdict.outputs_checked()),
+    );
+    match &report.verdict {
+        Verdict::Different { counterexample, .. } => {
+            obj.insert("counterexample".into(), counterexample_json(counterexample));
+        }
+        Verdict::Undecided { outputs, .. } => {
+            obj.insert("undecided_outputs".into(), json!(outputs));
+        }
+        Verdict::Equivalent { .. } => {}
+    }
+    obj.insert(
+        "stats".into(),
+        serde_json::to_value(&report.stats).expect("stats serialise"),
+    );
+    Value::Object(obj)
+}
+
+/// The text report: the verdict, and for a difference a table of the input
+/// values and of each differing output's value in A and in B.
+pub fn to_text(report: &EquivReport, a: &Path, b: &Path) -> String {
+    let mut s = String::new();
+    let checked = report.verdict.outputs_checked();
+    match &report.verdict {
+        Verdict::Equivalent { .. } => {
+            s += &format!(
+                "equivalent: all {checked} outputs of {} and {} are proven equal\n",
+                a.display(),
+                b.display()
+            );
+        }
+        Verdict::Undecided { outputs, .. } => {
+            s += &format!(
+                "undecided: the work limit stopped the proof of {} of {checked} outputs (no difference found)\n",
+                outputs.len()
+            );
+            for o in outputs {
+                s += &format!("  {o}\n");
+            }
+        }
+        Verdict::Different { counterexample, .. } => {
+            let cex = counterexample;
+            s += &format!(
+                "different: {} of {checked} outputs differ on this input assignment\n\n",
+                cex.differing_outputs.len()
+            );
+            let width = cex
+                .inputs
+                .keys()
+                .chain(&cex.differing_outputs)
+                .map(|n| n.chars().count())
+                .max()
+                .unwrap_or(0)
+                .max(6);
+            s += &format!("  {:<width$}  value\n", "input");
+            for (name, &v) in &cex.inputs {
+                s += &format!("  {name:<width$}  {}\n", v as u8);
+            }
+            s += &format!("\n  {:<width$}  A  B\n", "output");
+            for (name, &(x, y)) in cex.differing_outputs.iter().zip(&cex.output_values) {
+                s += &format!("  {name:<width$}  {}  {}\n", x as u8, y as u8);
+            }
+            s += &format!("\n  A = {}\n  B = {}\n", a.display(), b.display());
+        }
+    }
+    s
 }

@@ -1,16 +1,168 @@
-//! `ribbonmap exact` (not built yet).
+//! `ribbonmap exact`: a provably smallest network of library cells for a
+//! small function, printed as a small netlist with its costs.
 
-use super::{CliError, CmdResult};
+use super::common::{load_library, Format};
+use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK, EXIT_UNDECIDED};
+use crate::exact::{gates_from_library, synthesize, ExactError, ExactOptions, Objective};
+use std::time::{Duration, Instant};
+
+/// What `--objective` minimises.
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ObjectiveArg {
+    /// Fewest cells.
+    Cells,
+    /// Least total area.
+    Area,
+    /// Fewest levels, then fewest cells.
+    Depth,
+}
 
 /// Arguments of `ribbonmap exact`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Arguments (placeholder until the command is built).
-    rest: Vec<String>,
+    /// Truth table in hex (0xE8) or binary (0b11101000); a comma-separated
+    /// list for several outputs (0x96,0xE8 is a full adder).
+    pub truth: String,
+    /// Number of inputs (0 to 5).
+    #[arg(long)]
+    pub inputs: usize,
+    /// Library: a built-in name or a library file.
+    #[arg(long, default_value = "ribbon3")]
+    pub lib: String,
+    /// What to minimise.
+    #[arg(long, value_enum, default_value = "cells")]
+    pub objective: ObjectiveArg,
+    /// Both phases of every input, and complemented outputs, are free.
+    #[arg(long)]
+    pub free_complements: bool,
+    /// Stop each SAT call after about this many conflicts.
+    #[arg(long)]
+    pub conflict_limit: Option<u64>,
+    /// Stop the search after this many seconds.
+    #[arg(long)]
+    pub time_limit: Option<f64>,
+    /// Largest number of cells to try.
+    #[arg(long, default_value_t = 10)]
+    pub max_steps: usize,
+    /// Output format: text or json.
+    #[arg(long, value_enum, default_value = "text")]
+    pub format: Format,
 }
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
-    let _ = args.rest;
-    Err(CliError::Input("'exact' is not built yet".into()))
+    if !matches!(args.format, Format::Text | Format::Json) {
+        return Err(CliError::Input(
+            "exact prints text or json only".to_string(),
+        ));
+    }
+    if args.inputs > 5 {
+        return Err(CliError::Input(format!(
+            "--inputs {}: exact synthesis supports at most 5 inputs",
+            args.inputs
+        )));
+    }
+    let functions = args
+        .truth
+        .split(',')
+        .map(|t| crate::truth::parse_truth_word(t, args.inputs).map_err(CliError::Input))
+        .collect::<Result<Vec<u64>, CliError>>()?;
+    let time_limit = match args.time_limit {
+        Some(s) if !(s.is_finite() && s > 0.0) => {
+            return Err(CliError::Input(format!(
+                "--time-limit {s}: expected a positive number of seconds"
+            )))
+        }
+        Some(s) => Some(Duration::from_secs_f64(s)),
+        None => None,
+    };
+    let library = load_library(&args.lib)?;
+    let gates = gates_from_library(&library);
+    let objective = match args.objective {
+        ObjectiveArg::Cells => Objective::Cells,
+        ObjectiveArg::Area => Objective::Area,
+        ObjectiveArg::Depth => Objective::Depth,
+    };
+    let opts = ExactOptions {
+        objective,
+        free_complements: args.free_complements,
+        conflict_limit: args.conflict_limit,
+        time_limit,
+        max_steps: args.max_steps,
+    };
+    let start = Instant::now();
+    let result = match synthesize(&functions, args.inputs, &gates, &opts) {
+        Ok(r) => r,
+        Err(ExactError::NotFound(n)) => {
+            eprintln!(
+                "error: no network of at most {n} cells of '{}' realises the function",
+                library.name
+            );
+            return Ok(EXIT_NEGATIVE);
+        }
+        Err(ExactError::LimitReached) => {
+            eprintln!("error: a resource limit stopped the search before any network was found");
+            return Ok(EXIT_UNDECIDED);
+        }
+        Err(ExactError::Internal(m)) => return Err(CliError::Internal(m)),
+        Err(e) => return Err(CliError::Input(e.to_string())),
+    };
+    let seconds = start.elapsed().as_secs_f64();
+    let tables: Vec<String> = functions.iter().map(|f| format!("0x{f:X}")).collect();
+    let objective_name = format!("{objective:?}").to_lowercase();
+    match args.format {
+        Format::Json => {
+            let value = serde_json::json!({
+                "function": tables,
+                "inputs": args.inputs,
+                "library": library.name,
+                "objective": objective_name,
+                "free_complements": args.free_complements,
+                "cells": result.cells,
+                "area": result.area,
+                "depth": result.depth,
+                "optimal": result.optimal,
+                "netlist": result.netlist(),
+                "steps": result.steps,
+                "outputs": result.outputs,
+                "sat_calls": result.sat_calls,
+                "seconds": seconds,
+            });
+            println!(
+                "{}",
+                serde_json::to_string_pretty(&value)
+                    .map_err(|e| CliError::Internal(e.to_string()))?
+            );
+        }
+        _ => {
+            println!(
+                "function   {} over {} inputs",
+                tables.join(","),
+                args.inputs
+            );
+            println!("library    {}", library.name);
+            println!("objective  {objective_name}");
+            println!(
+                "cells      {}{}",
+                result.cells,
+                if result.optimal {
+                    "  (proven minimal)"
+                } else {
+                    "  (not proven minimal: a limit stopped the proof)"
+                }
+            );
+            println!("area       {} {}", result.area, library.units.area);
+            println!("depth      {}", result.depth);
+            println!("time       {seconds:.3} s, {} SAT calls", result.sat_calls);
+            println!("netlist");
+            for line in result.netlist() {
+                println!("  {line}");
+            }
+        }
+    }
+    Ok(if result.optimal {
+        EXIT_OK
+    } else {
+        EXIT_UNDECIDED
+    })
 }

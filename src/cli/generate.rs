@@ -1,16 +1,104 @@
-//! `ribbonmap generate` (not built yet).
+//! `ribbonmap generate`: writes a parameterised benchmark circuit.
+//!
+//! The command parses the family, width, style and carry-in, calls
+//! [`crate::generate::write_circuit`], and writes the text to the `-o` file
+//! (atomically; the format follows the extension) or to standard output
+//! (BLIF unless `--output-format` says otherwise). `--list` prints every
+//! family with its styles and width range.
 
-use super::{CliError, CmdResult};
+use super::{CliError, CmdResult, EXIT_OK};
+use crate::generate::{check_params, write_circuit, Family, Params};
+use crate::io::NetlistFormat;
+use std::io::Write;
+use std::path::PathBuf;
 
 /// Arguments of `ribbonmap generate`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Arguments (placeholder until the command is built).
-    rest: Vec<String>,
+    /// Circuit family: adder, multiplier, parity, majority, popcount,
+    /// comparator, mux, decoder, barrel-shifter (or shifter), hamming, alu.
+    family: Option<String>,
+    /// Width: bits per operand (mux: select bits; decoder: input bits;
+    /// hamming: data bits; parity, majority, popcount: inputs).
+    #[arg(long, short = 'w')]
+    width: Option<u32>,
+    /// Architecture (see --list); each family has a default.
+    #[arg(long, short = 's')]
+    style: Option<String>,
+    /// Adders: add a carry input `cin`, declared last.
+    #[arg(long)]
+    carry_in: bool,
+    /// Output file (.blif or .v); standard output when absent.
+    #[arg(long, short = 'o')]
+    output: Option<PathBuf>,
+    /// Output format; overrides the -o extension (default BLIF on standard
+    /// output).
+    #[arg(long, value_enum)]
+    output_format: Option<NetlistFormat>,
+    /// List the families with their styles and widths, and exit.
+    #[arg(long)]
+    list: bool,
+}
+
+/// The family table printed by `--list`.
+pub fn family_table() -> String {
+    let mut out = String::new();
+    for f in Family::ALL {
+        let (lo, hi) = f.width_range();
+        out.push_str(&format!(
+            "{:<15} widths {lo}..{hi:<6} styles: {}\n",
+            f.name(),
+            f.styles().join(", ")
+        ));
+    }
+    out
 }
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
-    let _ = args.rest;
-    Err(CliError::Input("'generate' is not built yet".into()))
+    if args.list {
+        print!("{}", family_table());
+        return Ok(EXIT_OK);
+    }
+    let family: Family = match &args.family {
+        Some(name) => name.parse().map_err(|e| CliError::Input(format!("{e}")))?,
+        None => {
+            return Err(CliError::Input(
+                "generate needs a circuit family (e.g. 'ribbonmap generate adder --width 8'; --list shows them)".into(),
+            ))
+        }
+    };
+    let width = args
+        .width
+        .ok_or_else(|| CliError::Input(format!("generate {family} needs --width N")))?;
+    let params = Params {
+        width,
+        style: args.style.clone(),
+        carry_in: args.carry_in,
+    };
+    check_params(family, &params).map_err(|e| CliError::Input(e.to_string()))?;
+    let format = match (args.output_format, &args.output) {
+        (Some(f), _) => f,
+        (None, None) => NetlistFormat::Blif,
+        (None, Some(path)) => NetlistFormat::from_path(path).ok_or_else(|| {
+            CliError::Input(format!(
+                "{}: cannot tell the output format from the file name (expected .blif or .v, or --output-format)",
+                path.display()
+            ))
+        })?,
+    };
+    let text =
+        write_circuit(family, &params, format).map_err(|e| CliError::Input(e.to_string()))?;
+    match &args.output {
+        Some(path) => crate::fsutil::write_atomic(path, text.as_bytes())
+            .map_err(|e| CliError::Input(format!("{}: cannot write: {e}", path.display())))?,
+        None => {
+            let mut stdout = std::io::stdout().lock();
+            // A closed pipe (e.g. `| head`) is not an error worth reporting.
+            let _ = stdout
+                .write_all(text.as_bytes())
+                .and_then(|_| stdout.flush());
+        }
+    }
+    Ok(EXIT_OK)
 }

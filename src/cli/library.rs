@@ -1,16 +1,321 @@
-//! `ribbonmap library` (not built yet).
+//! `ribbonmap library list | show NAME|FILE | check FILE`.
+//!
+//! `list` names the built-in libraries; `show` prints every cell with its
+//! function, truth table, NPN class and costs; `check` validates a file and
+//! lists every problem (exit 1 when there are any, 2 when the file cannot be
+//! read at all).
 
-use super::{CliError, CmdResult};
+use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK};
+use crate::library::{builtin_text, function_texts, Leakage, Library};
+use crate::truth::TruthTable;
+use serde_json::json;
+
+/// Output format of the `library` subcommands.
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq, Default)]
+pub enum LibraryFormat {
+    /// Aligned text.
+    #[default]
+    Text,
+    /// JSON.
+    Json,
+}
 
 /// Arguments of `ribbonmap library`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Arguments (placeholder until the command is built).
-    rest: Vec<String>,
+    #[command(subcommand)]
+    action: Action,
+}
+
+#[derive(clap::Subcommand, Debug)]
+enum Action {
+    /// List the built-in libraries.
+    List {
+        /// Output format.
+        #[arg(long, value_enum, default_value_t = LibraryFormat::Text)]
+        format: LibraryFormat,
+    },
+    /// Print every cell of a library with its function, truth table, NPN class and costs.
+    Show {
+        /// A built-in library name or a library file.
+        library: String,
+        /// Output format.
+        #[arg(long, value_enum, default_value_t = LibraryFormat::Text)]
+        format: LibraryFormat,
+    },
+    /// Check a library file and list every problem (exit 1 if there are any).
+    Check {
+        /// The library file.
+        file: String,
+        /// Output format.
+        #[arg(long, value_enum, default_value_t = LibraryFormat::Text)]
+        format: LibraryFormat,
+    },
 }
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
-    let _ = args.rest;
-    Err(CliError::Input("'library' is not built yet".into()))
+    match args.action {
+        Action::List { format } => list(format),
+        Action::Show { library, format } => show(&library, format),
+        Action::Check { file, format } => check(&file, format),
+    }
+}
+
+fn first_sentence(text: &str) -> &str {
+    match text.find(". ") {
+        Some(i) => &text[..=i],
+        None => text,
+    }
+}
+
+fn list(format: LibraryFormat) -> CmdResult {
+    let libs: Vec<Library> = Library::builtin_names()
+        .iter()
+        .filter_map(|n| Library::builtin(n))
+        .collect();
+    match format {
+        LibraryFormat::Json => {
+            let items: Vec<_> = libs
+                .iter()
+                .map(|l| {
+                    json!({
+                        "name": l.name,
+                        "default": l.name == Library::DEFAULT_BUILTIN,
+                        "cells": l.cells.len(),
+                        "storage": l.storage.len(),
+                        "description": l.description,
+                    })
+                })
+                .collect();
+            println!(
+                "{}",
+                serde_json::to_string_pretty(&json!({ "libraries": items })).unwrap_or_default()
+            );
+        }
+        LibraryFormat::Text => {
+            let width = libs.iter().map(|l| l.name.len()).max().unwrap_or(0) + 2;
+            for l in &libs {
+                let mark = if l.name == Library::DEFAULT_BUILTIN {
+                    " (default)"
+                } else {
+                    ""
+                };
+                println!(
+                    "{:<width$}{:>3} cells  {}{}",
+                    l.name,
+                    l.cells.len(),
+                    first_sentence(&l.description),
+                    mark
+                );
+            }
+        }
+    }
+    Ok(EXIT_OK)
+}
+
+/// The library and its source text (for the function expressions as written).
+fn read_library(spec: &str) -> Result<(Library, String), CliError> {
+    if let Some(text) = builtin_text(spec) {
+        let lib = Library::from_json_str(text, &format!("<builtin:{spec}>"))
+            .map_err(|e| CliError::Internal(format!("built-in library is broken: {e}")))?;
+        return Ok((lib, text.to_string()));
+    }
+    let text = std::fs::read_to_string(spec).map_err(|e| {
+        CliError::Input(format!(
+            "{spec}: cannot read the library ({e}); built-in libraries are {}",
+            Library::builtin_names().join(", ")
+        ))
+    })?;
+    let lib = Library::from_json_str(&text, spec).map_err(|e| CliError::Input(e.to_string()))?;
+    Ok((lib, text))
+}
+
+/// A number for a table: whole numbers as such, others to four decimals.
+fn num(v: f64) -> String {
+    if v.fract() == 0.0 && v.abs() < 1e15 {
+        format!("{v:.0}")
+    } else {
+        let s = format!("{v:.4}");
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    }
+}
+
+fn leakage_text(l: &Leakage) -> String {
+    match l {
+        Leakage::Constant(v) => num(*v),
+        Leakage::PerRow(rows) => {
+            let mean = rows.iter().sum::<f64>() / rows.len().max(1) as f64;
+            format!("{} (mean of {} rows)", num(mean), rows.len())
+        }
+    }
+}
+
+fn show(spec: &str, format: LibraryFormat) -> CmdResult {
+    let (lib, text) = read_library(spec)?;
+    let functions = function_texts(&text);
+    let function_of = |name: &str| -> String {
+        functions
+            .iter()
+            .find(|(n, _)| n == name)
+            .map(|(_, f)| f.clone())
+            .unwrap_or_default()
+    };
+    match format {
+        LibraryFormat::Json => {
+            let cells: Vec<_> = lib
+                .cells
+                .iter()
+                .map(|c| {
+                    let (canon, _) = c.npn();
+                    json!({
+                        "name": c.name,
+                        "inputs": c.inputs,
+                        "output": c.output,
+                        "function": function_of(&c.name),
+                        "truth": TruthTable::from_u64(c.truth, c.arity()).to_hex(),
+                        "npn_class": TruthTable::from_u64(canon, c.arity()).to_hex(),
+                        "area": c.area,
+                        "delay": { "intrinsic": c.delay.intrinsic, "per_load": c.delay.per_load },
+                        "input_load": c.input_load,
+                        "switch_energy": c.switch_energy,
+                        "leakage": c.leakage,
+                        "devices": c.devices,
+                    })
+                })
+                .collect();
+            let out = json!({
+                "name": lib.name,
+                "description": lib.description,
+                "units": lib.units,
+                "supply_v": lib.supply_v,
+                "primary_output_load": lib.primary_output_load,
+                "content_hash": format!("{:016x}", lib.content_hash()),
+                "cells": cells,
+                "storage": lib.storage,
+            });
+            println!("{}", serde_json::to_string_pretty(&out).unwrap_or_default());
+        }
+        LibraryFormat::Text => {
+            println!("library {}", lib.name);
+            if !lib.description.is_empty() {
+                println!("  {}", lib.description);
+            }
+            let u = &lib.units;
+            println!(
+                "  units: area {}, delay {}, energy {}, power {}; primary output load {}{}",
+                u.area,
+                u.delay,
+                u.energy,
+                u.power,
+                lib.primary_output_load,
+                lib.supply_v
+                    .map(|v| format!("; supply {v} V"))
+                    .unwrap_or_default()
+            );
+            println!("  content hash {:016x}", lib.content_hash());
+            println!();
+            let rows: Vec<[String; 11]> = lib
+                .cells
+                .iter()
+                .map(|c| {
+                    let (canon, _) = c.npn();
+                    [
+                        c.name.clone(),
+                        format!("{} = f({})", c.output, c.inputs.join(", ")),
+                        function_of(&c.name),
+                        TruthTable::from_u64(c.truth, c.arity()).to_hex(),
+                        TruthTable::from_u64(canon, c.arity()).to_hex(),
+                        num(c.area),
+                        format!(
+                            "{} + {}*load",
+                            num(c.delay.intrinsic),
+                            num(c.delay.per_load)
+                        ),
+                        num(c.input_load),
+                        num(c.switch_energy),
+                        leakage_text(&c.leakage),
+                        format!("{}", c.devices),
+                    ]
+                })
+                .collect();
+            let header = [
+                "cell", "pins", "function", "truth", "npn", "area", "delay", "in load", "energy",
+                "leakage", "devices",
+            ];
+            let mut widths: Vec<usize> = header.iter().map(|h| h.len()).collect();
+            for r in &rows {
+                for (w, cell) in widths.iter_mut().zip(r.iter()) {
+                    *w = (*w).max(cell.chars().count());
+                }
+            }
+            let line = |cols: Vec<&str>| {
+                let parts: Vec<String> = cols
+                    .iter()
+                    .zip(widths.iter())
+                    .map(|(c, w)| format!("{c:<w$}"))
+                    .collect();
+                println!("{}", parts.join("  ").trim_end());
+            };
+            line(header.to_vec());
+            for r in &rows {
+                line(r.iter().map(String::as_str).collect());
+            }
+            for s in &lib.storage {
+                println!();
+                println!(
+                    "storage {}: d {}, q {}, clock {}, area {}",
+                    s.name, s.d, s.q, s.clock, s.area
+                );
+            }
+        }
+    }
+    Ok(EXIT_OK)
+}
+
+fn check(file: &str, format: LibraryFormat) -> CmdResult {
+    let result = Library::load(std::path::Path::new(file));
+    match (result, format) {
+        (Err(e), _) if e.unreadable => Err(CliError::Input(e.to_string())),
+        (Ok(lib), LibraryFormat::Text) => {
+            println!(
+                "{file}: library '{}' is sound: {} cells, {} storage cells",
+                lib.name,
+                lib.cells.len(),
+                lib.storage.len()
+            );
+            Ok(EXIT_OK)
+        }
+        (Ok(lib), LibraryFormat::Json) => {
+            let out = json!({ "file": file, "sound": true, "name": lib.name, "cells": lib.cells.len(), "problems": [] });
+            println!("{}", serde_json::to_string_pretty(&out).unwrap_or_default());
+            Ok(EXIT_OK)
+        }
+        (Err(e), LibraryFormat::Text) => {
+            for line in e.lines() {
+                println!("{line}");
+            }
+            println!(
+                "{file}: {} problem{} found",
+                e.problems.len(),
+                if e.problems.len() == 1 { "" } else { "s" }
+            );
+            Ok(EXIT_NEGATIVE)
+        }
+        (Err(e), LibraryFormat::Json) => {
+            let problems: Vec<_> = e
+                .problems
+                .iter()
+                .map(|p| {
+                    json!({
+                        "cell": p.cell, "field": p.field, "line": p.line,
+                        "column": p.column, "message": p.message,
+                    })
+                })
+                .collect();
+            let out = json!({ "file": file, "sound": false, "problems": problems });
+            println!("{}", serde_json::to_string_pretty(&out).unwrap_or_default());
+            Ok(EXIT_NEGATIVE)
+        }
+    }
 }

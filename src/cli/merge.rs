@@ -1,16 +1,69 @@
-//! `ribbonmap merge` (not built yet).
+//! `ribbonmap merge`: combine sweep result files (for example the shards of
+//! a job array), drop duplicate plan keys and print the comparison tables.
 
-use super::{CliError, CmdResult};
+use super::common::Format;
+use super::compare::print_table;
+use super::{CliError, CmdResult, EXIT_OK};
+use crate::study::{read_results, Metric};
+use std::path::PathBuf;
 
 /// Arguments of `ribbonmap merge`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Arguments (placeholder until the command is built).
-    rest: Vec<String>,
+    /// Result files written by `ribbonmap sweep` ('-' reads standard input).
+    #[arg(required = true, value_name = "RESULTS.jsonl")]
+    results: Vec<PathBuf>,
+    /// Table format.
+    #[arg(long, value_enum, default_value = "text")]
+    format: Format,
+    /// Library the ratios are relative to (default: the first one found).
+    #[arg(long, value_name = "LIBRARY")]
+    baseline: Option<String>,
+    /// Also write a grouped bar chart of the ratios to this SVG file.
+    #[arg(long, value_name = "OUT.svg")]
+    chart: Option<PathBuf>,
+    /// Metric the chart shows.
+    #[arg(long = "chart-metric", value_enum, default_value = "cells")]
+    chart_metric: Metric,
+    /// Also write the combined, duplicate-free result lines to this file.
+    #[arg(short = 'o', long = "output", value_name = "MERGED.jsonl")]
+    output: Option<PathBuf>,
 }
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
-    let _ = args.rest;
-    Err(CliError::Input("'merge' is not built yet".into()))
+    let merged = read_results(&args.results)?;
+    for file in &merged.truncated {
+        eprintln!("note: {file}: ignored an unfinished last line (an interrupted sweep)");
+    }
+    if merged.duplicates > 0 {
+        eprintln!(
+            "note: dropped {} duplicate result line(s) (same plan_key)",
+            merged.duplicates
+        );
+    }
+    if let Some(b) = &args.baseline {
+        if !merged.records.iter().any(|r| r.library == *b) {
+            return Err(CliError::Input(format!(
+                "baseline library '{b}' occurs in no result line"
+            )));
+        }
+    }
+    if let Some(path) = &args.output {
+        let mut text = String::new();
+        for r in &merged.records {
+            text.push_str(&r.to_json_line());
+            text.push('\n');
+        }
+        crate::fsutil::write_atomic(path, text.as_bytes())
+            .map_err(|e| CliError::Input(format!("cannot write {}: {e}", path.display())))?;
+    }
+    print_table(
+        &merged.records,
+        args.baseline.as_deref(),
+        args.format,
+        args.chart.as_deref(),
+        args.chart_metric,
+    )?;
+    Ok(EXIT_OK)
 }

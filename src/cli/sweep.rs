@@ -1,16 +1,74 @@
-//! `ribbonmap sweep` (not built yet).
+//! `ribbonmap sweep`: run every job of a plan (or one shard of them) and
+//! append one result line per finished job, resuming where a previous run
+//! stopped.
 
-use super::{CliError, CmdResult};
+use super::compare::cli_error;
+use super::{CliError, CmdResult, EXIT_OK};
+use crate::study::run::{run_sweep, SweepOptions};
+use crate::study::{Plan, RunOptions, Shard, StudyError};
+use std::path::PathBuf;
 
 /// Arguments of `ribbonmap sweep`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Arguments (placeholder until the command is built).
-    rest: Vec<String>,
+    /// The plan file (JSON: benchmarks, libraries, goals, options).
+    #[arg(value_name = "PLAN.json")]
+    plan: PathBuf,
+    /// Run only shard I of N (1-based), e.g. from a job array:
+    /// --shard $SLURM_ARRAY_TASK_ID/$SLURM_ARRAY_TASK_COUNT.
+    #[arg(long, value_name = "I/N")]
+    shard: Option<Shard>,
+    /// Worker threads (default: one per core).
+    #[arg(long, value_name = "N")]
+    jobs: Option<usize>,
+    /// Results file; finished jobs are appended, and jobs already in it are
+    /// skipped.
+    #[arg(
+        short = 'o',
+        long = "output",
+        value_name = "RESULTS.jsonl",
+        default_value = "results.jsonl"
+    )]
+    output: PathBuf,
 }
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
-    let _ = args.rest;
-    Err(CliError::Input("'sweep' is not built yet".into()))
+    let plan = Plan::load(&args.plan)?;
+    let options = SweepOptions {
+        shard: args.shard,
+        run: RunOptions {
+            threads: args.jobs,
+            progress: true,
+        },
+    };
+    let summary = run_sweep(&plan, &args.output, &options).map_err(cli_error)?;
+    eprintln!(
+        "sweep: {} jobs{}, {} already in {}, {} done, {} failed",
+        summary.jobs,
+        match args.shard {
+            Some(s) => format!(" in shard {}/{}", s.index, s.count),
+            None => String::new(),
+        },
+        summary.skipped,
+        args.output.display(),
+        summary.completed,
+        summary.failures.len()
+    );
+    for (key, name, error) in &summary.failures {
+        eprintln!("error: job {key} ({name}): {error}");
+    }
+    match summary
+        .failures
+        .iter()
+        .find(|(_, _, e)| matches!(e, StudyError::Internal(_)))
+        .or(summary.failures.first())
+    {
+        None => Ok(EXIT_OK),
+        Some((_, _, StudyError::Internal(m))) => Err(CliError::Internal(m.clone())),
+        Some((_, _, StudyError::Input(m))) => Err(CliError::Input(format!(
+            "{} job(s) failed; first: {m}",
+            summary.failures.len()
+        ))),
+    }
 }

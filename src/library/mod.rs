@@ -2,9 +2,26 @@
 //!
 //! A [`Library`] is a list of combinational [`Cell`]s, each with its Boolean
 //! function as a truth table and its costs, plus optional storage cells. The
-//! on-disk format is `ribbonmap-library/1` (JSON, see DESIGN.md); loading and
-//! validation live in this module's children, the built-in libraries in
-//! `libraries/` at the crate root.
+//! on-disk format is `ribbonmap-library/1` (JSON, see DESIGN.md).
+//!
+//! The children split the work: `load` reads and checks a file
+//! ([`Library::from_json_str`], [`Library::load`]) and collects every problem
+//! into a [`LibraryError`]; `positions` finds lines and columns for those
+//! problems; [`completeness`] applies Post's criteria; `builtin` embeds the
+//! libraries in `libraries/` ([`Library::builtin`]); `hash` fingerprints a
+//! library's cells and costs ([`Library::content_hash`]).
+
+mod builtin;
+pub mod completeness;
+mod error;
+mod hash;
+mod load;
+mod positions;
+
+pub use builtin::builtin_text;
+pub use error::{LibraryError, LibraryProblem};
+pub use hash::fnv1a;
+pub use load::{function_texts, FORMAT, MAX_CELL_INPUTS};
 
 use serde::{Deserialize, Serialize};
 
@@ -77,6 +94,18 @@ impl Cell {
     /// Number of inputs.
     pub fn arity(&self) -> usize {
         self.inputs.len()
+    }
+
+    /// NPN canonical form of the cell's function and the transformation that
+    /// reaches it (see [`crate::truth::npn`] for what the transformation means).
+    pub fn npn(&self) -> (u64, crate::truth::NpnTransform) {
+        crate::truth::npn_canon(self.truth, self.arity())
+    }
+
+    /// Delay when the output drives `load` (sum of driven input loads plus
+    /// primary output loads): `intrinsic + per_load * load`.
+    pub fn delay_for_load(&self, load: f64) -> f64 {
+        self.delay.intrinsic + self.delay.per_load * load
     }
 
     /// Mean leakage over all input rows (or the constant leakage).

@@ -1,0 +1,105 @@
+//! Speed of equivalence checking on two classic hard cases for plain SAT:
+//! the ISCAS-85 16x16 multiplier c6288 against its re-synthesised version
+//! c6288g (tests/data/reference, circuitgraph 0.2.1 via PROVENANCE.md), and a
+//! 128x128 array multiplier (about 98k nodes) against a restructured copy
+//! (about 180k nodes) whose XORs and majorities are all rewritten as AND/OR
+//! logic.
+
+use criterion::{criterion_group, criterion_main, Criterion};
+use ribbonmap::equiv::{check_with_stats, EquivOptions, Verdict};
+use ribbonmap::network::{Lit, Network};
+
+#[path = "../tests/equiv_support/mod.rs"]
+#[allow(dead_code)]
+mod equiv_support;
+
+/// Full adder in the multiplier's own style: `xor_style` uses XOR nodes and
+/// shares `a ^ b` with the carry; otherwise only AND/OR logic with the
+/// carry as a sum of three products.
+fn full_adder(net: &mut Network, a: Lit, b: Lit, c: Lit, xor_style: bool) -> (Lit, Lit) {
+    if xor_style {
+        let s1 = net.xor(a, b);
+        let sum = net.xor(s1, c);
+        let ab = net.and(a, b);
+        let cs = net.and(c, s1);
+        (sum, net.or(ab, cs))
+    } else {
+        let xor = |net: &mut Network, x: Lit, y: Lit| {
+            let t = net.and(x, !y);
+            let e = net.and(!x, y);
+            net.or(t, e)
+        };
+        let s1 = xor(net, a, b);
+        let sum = xor(net, s1, c);
+        let ab = net.and(a, b);
+        let ac = net.and(a, c);
+        let bc = net.and(b, c);
+        let t = net.or(ab, ac);
+        (sum, net.or(t, bc))
+    }
+}
+
+/// An n x n unsigned array multiplier (rows of ripple-carry adders);
+/// inputs a[0..n], b[0..n], outputs p[0..2n], bit 0 least significant.
+fn array_multiplier(n: usize, xor_style: bool) -> Network {
+    let mut net = Network::new(if xor_style { "mul_xor" } else { "mul_andor" });
+    let a: Vec<Lit> = (0..n)
+        .map(|i| net.add_input(format!("a[{i}]")).unwrap())
+        .collect();
+    let b: Vec<Lit> = (0..n)
+        .map(|i| net.add_input(format!("b[{i}]")).unwrap())
+        .collect();
+    let mut product = Vec::new();
+    // Running sum of the rows so far, bits i.. of the product.
+    let mut acc: Vec<Lit> = (0..n).map(|j| net.and(a[j], b[0])).collect();
+    for row in 1..n {
+        product.push(acc[0]);
+        let mut next = Vec::with_capacity(n);
+        let mut carry = Lit::FALSE;
+        for j in 0..n {
+            let pp = net.and(a[j], b[row]);
+            let upper = if j + 1 < n { acc[j + 1] } else { Lit::FALSE };
+            let (s, c) = full_adder(&mut net, pp, upper, carry, xor_style);
+            next.push(s);
+            carry = c;
+        }
+        next.push(carry);
+        acc = next;
+    }
+    product.extend(acc);
+    for (i, &p) in product.iter().enumerate().take(2 * n) {
+        net.add_output(format!("p[{i}]"), p).unwrap();
+    }
+    net
+}
+
+fn bench(c: &mut Criterion) {
+    let a = equiv_support::iscas("c6288", false);
+    let b = equiv_support::iscas("c6288", true);
+    let report = check_with_stats(&a, &b, &EquivOptions::default()).unwrap();
+    assert!(matches!(report.verdict, Verdict::Equivalent { .. }));
+    eprintln!("c6288 vs c6288g: {:?}", report.stats);
+    let mut group = c.benchmark_group("equiv");
+    group.sample_size(10);
+    group.bench_function("c6288_vs_c6288g", |bench| {
+        bench.iter(|| check_with_stats(&a, &b, &EquivOptions::default()).unwrap())
+    });
+
+    let x = array_multiplier(128, true);
+    let y = array_multiplier(128, false);
+    eprintln!(
+        "128x128 multipliers: {} and {} nodes",
+        x.num_nodes(),
+        y.num_nodes()
+    );
+    let report = check_with_stats(&x, &y, &EquivOptions::default()).unwrap();
+    assert!(matches!(report.verdict, Verdict::Equivalent { .. }));
+    eprintln!("mul128: {:?}", report.stats);
+    group.bench_function("mul128_xor_vs_andor", |bench| {
+        bench.iter(|| check_with_stats(&x, &y, &EquivOptions::default()).unwrap())
+    });
+    group.finish();
+}
+
+criterion_group!(benches, bench);
+criterion_main!(benches);

@@ -1,0 +1,286 @@
+//! The optimum database: exact minimum implementations of small functions
+//! on one library, for the mapper.
+//!
+//! Keyed by the gate set's content hash and the function's permutation
+//! class: a query permutes the truth table to the smallest member of its
+//! class, looks that up (synthesising it on first use), and renames the
+//! inputs of the stored network back, so one SAT run serves every input
+//! order. Entries live in memory behind a lock (the database is `Sync`; many
+//! mapper threads may query it at once; synthesis runs outside the lock) and
+//! can be saved to and loaded from the coverage cache folder.
+//!
+//! ```
+//! use ribbonmap::exact::{GateSpec, OptimumDatabase, ExactOptions};
+//! let gates = vec![GateSpec::new("nand2", 2, 0x7, 1.0)];
+//! let db = OptimumDatabase::new("nand-only", gates, ExactOptions::default());
+//! let and2 = db.implementation(0x8, 2).unwrap();
+//! assert_eq!(and2.cells, 2);
+//! ```
+
+use super::cache;
+use super::gates::{row_mask, GateSpec};
+use super::synthesize::{synthesize, ExactOptions, ExactResult, Objective, Source};
+use rayon::prelude::*;
+use serde::{Deserialize, Serialize};
+use std::collections::HashMap;
+use std::path::PathBuf;
+use std::sync::{Arc, RwLock};
+
+/// Largest number of inputs the database serves.
+pub const DATABASE_MAX_INPUTS: usize = 4;
+
+/// Exact minimum implementations of functions of up to four inputs on one
+/// gate set, computed on demand and kept.
+pub struct OptimumDatabase {
+    name: String,
+    gates: Vec<GateSpec>,
+    hash: String,
+    options: ExactOptions,
+    /// (inputs, class representative) to its implementation (`None`: none
+    /// within the limits).
+    entries: RwLock<HashMap<(usize, u64), Option<Arc<ExactResult>>>>,
+}
+
+#[derive(Serialize, Deserialize)]
+struct DatabaseFile {
+    format: String,
+    library_hash: String,
+    objective: Objective,
+    free_complements: bool,
+    entries: Vec<(usize, u64, Option<ExactResult>)>,
+}
+
+impl OptimumDatabase {
+    /// An empty database for `gates` (named `name`), synthesising with
+    /// `options` (its objective decides what "optimum" means).
+    pub fn new(name: &str, gates: Vec<GateSpec>, options: ExactOptions) -> OptimumDatabase {
+        OptimumDatabase {
+            name: name.to_string(),
+            hash: cache::gate_set_hash(&gates),
+            gates,
+            options,
+            entries: RwLock::new(HashMap::new()),
+        }
+    }
+
+    /// Library name given at creation.
+    pub fn name(&self) -> &str {
+        &self.name
+    }
+
+    /// Content hash of the gate set (the key of the disk cache).
+    pub fn library_hash(&self) -> &str {
+        &self.hash
+    }
+
+    /// The gates the stored networks' `Step::gate` indices refer to.
+    pub fn gates(&self) -> &[GateSpec] {
+        &self.gates
+    }
+
+    /// Number of classes stored.
+    pub fn len(&self) -> usize {
+        self.entries.read().map(|e| e.len()).unwrap_or(0)
+    }
+
+    /// Whether nothing is stored yet.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// The minimum implementation of `truth` over `inputs` inputs (at most
+    /// four): steps over the function's own inputs, checked by simulation.
+    /// `None` when `inputs` is too large, the table does not fit, or no
+    /// network exists within the options' limits.
+    pub fn implementation(&self, truth: u64, inputs: usize) -> Option<Arc<ExactResult>> {
+        if inputs > DATABASE_MAX_INPUTS || truth & !row_mask(inputs) != 0 {
+            return None;
+        }
+        let (representative, perm) = smallest_permutation(truth, inputs);
+        let stored = self.class_implementation(inputs, representative)?;
+        if perm.iter().enumerate().all(|(k, &p)| k == p) {
+            return Some(stored);
+        }
+        let mut renamed = (*stored).clone();
+        let rename = |source: &mut Source| {
+            if let Source::Input(k) = source {
+                *k = perm[*k];
+            }
+        };
+        for step in &mut renamed.steps {
+            for f in &mut step.fanins {
+                rename(&mut f.source);
+            }
+        }
+        for o in &mut renamed.outputs {
+            rename(&mut o.source);
+        }
+        debug_assert_eq!(renamed.simulate(&self.gates), vec![truth]);
+        Some(Arc::new(renamed))
+    }
+
+    /// Synthesises every permutation class of `inputs` inputs not yet stored,
+    /// in parallel.
+    pub fn precompute(&self, inputs: usize) {
+        if inputs > DATABASE_MAX_INPUTS {
+            return;
+        }
+        let (_, classes) =
+            super::classes::enumerate_classes(inputs, super::classes::Transforms::Permutation);
+        classes.par_iter().for_each(|c| {
+            let _ = self.class_implementation(inputs, c.representative);
+        });
+    }
+
+    fn class_implementation(&self, inputs: usize, representative: u64) -> Option<Arc<ExactResult>> {
+        if let Ok(entries) = self.entries.read() {
+            if let Some(found) = entries.get(&(inputs, representative)) {
+                return found.clone();
+            }
+        }
+        let computed = synthesize(&[representative], inputs, &self.gates, &self.options)
+            .ok()
+            .map(Arc::new);
+        if let Ok(mut entries) = self.entries.write() {
+            entries
+                .entry((inputs, representative))
+                .or_insert_with(|| computed.clone());
+        }
+        computed
+    }
+
+    fn file_path(&self) -> Option<PathBuf> {
+        cache::cache_dir().map(|d| {
+            d.join(format!(
+                "optimum-{}-{:?}{}.json",
+                self.hash,
+                self.options.objective,
+                if self.options.free_complements {
+                    "-free"
+                } else {
+                    ""
+                }
+            ))
+        })
+    }
+
+    /// Adds the entries saved in the cache folder for this gate set and
+    /// objective; returns how many were read.
+    pub fn load_from_cache(&self) -> usize {
+        let Some(path) = self.file_path() else {
+            return 0;
+        };
+        let Some(file) = cache::read_json::<DatabaseFile>(&path) else {
+            return 0;
+        };
+        if file.format != cache::format_tag()
+            || file.library_hash != self.hash
+            || file.objective != self.options.objective
+            || file.free_complements != self.options.free_complements
+        {
+            return 0;
+        }
+        let mut count = 0;
+        if let Ok(mut entries) = self.entries.write() {
+            for (inputs, rep, result) in file.entries {
+                let valid = result
+                    .as_ref()
+                    .is_none_or(|r| r.simulate(&self.gates) == vec![rep]);
+                if valid {
+                    entries.insert((inputs, rep), result.map(Arc::new));
+                    count += 1;
+                }
+            }
+        }
+        count
+    }
+
+    /// Saves all entries to the cache folder (atomically).
+    pub fn save_to_cache(&self) -> std::io::Result<()> {
+        let Some(path) = self.file_path() else {
+            return Ok(());
+        };
+        let mut entries: Vec<(usize, u64, Option<ExactResult>)> = match self.entries.read() {
+            Ok(e) => e
+                .iter()
+                .map(|(&(i, rep), r)| (i, rep, r.as_ref().map(|r| (**r).clone())))
+                .collect(),
+            Err(_) => return Ok(()),
+        };
+        entries.sort_by_key(|e| (e.0, e.1));
+        cache::write_json(
+            &path,
+            &DatabaseFile {
+                format: cache::format_tag().to_string(),
+                library_hash: self.hash.clone(),
+                objective: self.options.objective,
+                free_complements: self.options.free_complements,
+                entries,
+            },
+        )
+    }
+}
+
+/// The smallest table reachable from `truth` by permuting inputs, and the
+/// permutation `perm` such that input `k` of the smallest table is input
+/// `perm[k]` of `truth`.
+fn smallest_permutation(truth: u64, inputs: usize) -> (u64, Vec<usize>) {
+    let mut best = (truth, (0..inputs).collect::<Vec<_>>());
+    let mut perm: Vec<usize> = (0..inputs).collect();
+    permute_all(&mut perm, 0, &mut |p| {
+        let mut g = 0u64;
+        for r in 0..(1usize << inputs) {
+            let mut old = 0;
+            for (k, &pk) in p.iter().enumerate() {
+                if r >> k & 1 == 1 {
+                    old |= 1 << pk;
+                }
+            }
+            g |= (truth >> old & 1) << r;
+        }
+        if g < best.0 {
+            best = (g, p.to_vec());
+        }
+    });
+    best
+}
+
+fn permute_all(items: &mut Vec<usize>, start: usize, visit: &mut dyn FnMut(&[usize])) {
+    if start == items.len() {
+        visit(items);
+        return;
+    }
+    for i in start..items.len() {
+        items.swap(start, i);
+        permute_all(items, start + 1, visit);
+        items.swap(start, i);
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn permuted_queries_share_one_entry_and_simulate() {
+        let gates = vec![
+            GateSpec::new("and2", 2, 0x8, 1.0),
+            GateSpec::new("inv", 1, 0x1, 1.0),
+        ];
+        let db = OptimumDatabase::new("t", gates.clone(), ExactOptions::default());
+        // x0 & !x1 and x1 & !x0 are one permutation class.
+        let a = db.implementation(0b0010, 2).unwrap();
+        let b = db.implementation(0b0100, 2).unwrap();
+        assert_eq!(db.len(), 1);
+        assert_eq!(a.simulate(&gates), vec![0b0010]);
+        assert_eq!(b.simulate(&gates), vec![0b0100]);
+        assert_eq!(a.cells, 2);
+        // Every 3-input function with an asymmetric order.
+        for t in [0xCAu64, 0xD8, 0xB1] {
+            let r = db.implementation(t, 3).unwrap();
+            assert_eq!(r.simulate(&gates), vec![t]);
+        }
+        assert!(db.implementation(0x1_0000, 4).is_none());
+        assert!(db.implementation(0x3, 5).is_none());
+    }
+}

@@ -1,0 +1,782 @@
+//! Cover selection: which match implements each node phase.
+//!
+//! Every node has two phases (the node and its complement), each with its
+//! own choice: a match (a cut and an implementation of the cut function or
+//! its complement), an inverter on the other phase (charged only where a
+//! phase has no cheaper match of its own), or nothing to pay for (an input's
+//! true phase, a constant). Passes over the nodes in topological order:
+//!
+//! 1. delay: cut enumeration and, per phase, the match with the least
+//!    arrival time (library delays with a load estimated from the fanout),
+//!    ties broken by area flow;
+//! 2. area flow: the match with the least area flow among those that meet
+//!    the required time of the phase (from the previous cover);
+//! 3. exact area: with reference counts of the current cover, the match that
+//!    adds the least area when the node's own cone is released, again within
+//!    the required time.
+//!
+//! Required times come from the outputs' target (the best delay, the best
+//! delay plus the allowed slack, or none for pure area), propagated backwards
+//! through the current cover. Everything iterates in index order and breaks
+//! ties by position, so the result is deterministic.
+
+use super::cuts::{CutStore, Scratch};
+use super::implementation::Source;
+use super::matches::{MatchTable, NO_SLOT};
+use super::MapError;
+use crate::library::Library;
+use crate::netlist::{Driver, MappedNetlist, NetId, Port, StorageInstance};
+use crate::network::{Network, NodeId, NodeKind};
+use std::collections::HashSet;
+
+const NONE: u32 = u32::MAX;
+const INVERT: u32 = u32::MAX - 1;
+const FREE: u32 = u32::MAX - 2;
+const EPS: f32 = 1e-4;
+
+/// What a selection pass optimises.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Rank {
+    /// Least arrival, then least area flow.
+    Delay,
+    /// Least area flow, then least arrival.
+    AreaFlow,
+}
+
+/// The covering state of one mapping run.
+pub struct Cover<'a> {
+    net: &'a Network,
+    lib: &'a Library,
+    table: &'a MatchTable,
+    /// Cuts of every node.
+    pub cuts: CutStore,
+    choice: Vec<u32>,
+    arrival: Vec<f32>,
+    flow: Vec<f32>,
+    required: Vec<f32>,
+    refs: Vec<u32>,
+    load: Vec<f32>,
+    fanout_estimate: Vec<f32>,
+    inverter: u32,
+    inverter_area: f32,
+}
+
+#[derive(Clone, Copy)]
+struct Pick {
+    choice: u32,
+    arrival: f32,
+    flow: f32,
+}
+
+impl Pick {
+    const EMPTY: Pick = Pick {
+        choice: NONE,
+        arrival: f32::INFINITY,
+        flow: f32::INFINITY,
+    };
+}
+
+/// True when `a` is preferred over `b` for a phase with required time `req`.
+#[inline]
+fn better(a: &Pick, b: &Pick, req: f32, rank: Rank) -> bool {
+    if b.choice == NONE {
+        return true;
+    }
+    let fa = a.arrival <= req + EPS;
+    let fb = b.arrival <= req + EPS;
+    if fa != fb {
+        return fa;
+    }
+    if !fa {
+        return a.arrival < b.arrival - EPS;
+    }
+    match rank {
+        Rank::Delay => {
+            a.arrival < b.arrival - EPS || (a.arrival <= b.arrival + EPS && a.flow < b.flow - EPS)
+        }
+        Rank::AreaFlow => {
+            a.flow < b.flow - EPS || (a.flow <= b.flow + EPS && a.arrival < b.arrival - EPS)
+        }
+    }
+}
+
+impl<'a> Cover<'a> {
+    /// Prepares the cover of `net`; cuts are enumerated by
+    /// [`Cover::enumerate_and_map`].
+    pub fn new(
+        net: &'a Network,
+        lib: &'a Library,
+        table: &'a MatchTable,
+        cut_size: usize,
+    ) -> Result<Cover<'a>, MapError> {
+        let inverter = table.inverter().ok_or_else(|| {
+            MapError::Unmappable(format!(
+                "library '{}' has no way to complement a signal",
+                lib.name
+            ))
+        })?;
+        let n = net.num_nodes();
+        let fanout = net.fanout_counts();
+        let mut po_refs = vec![0u32; n];
+        for l in net.outputs().values() {
+            po_refs[l.node().index()] += 1;
+        }
+        let typical = table.typical_load;
+        let load: Vec<f32> = (0..n)
+            .map(|i| {
+                let gate_fanout = fanout[i].saturating_sub(po_refs[i]) as f32;
+                (gate_fanout * typical + po_refs[i] as f32 * lib.primary_output_load as f32)
+                    .max(typical)
+            })
+            .collect();
+        let fanout_estimate = fanout.iter().map(|&f| (f as f32).max(1.0)).collect();
+        Ok(Cover {
+            net,
+            lib,
+            table,
+            cuts: CutStore::new(cut_size, n),
+            choice: vec![NONE; 2 * n],
+            arrival: vec![0.0; 2 * n],
+            flow: vec![0.0; 2 * n],
+            required: vec![f32::INFINITY; 2 * n],
+            refs: vec![0; 2 * n],
+            load,
+            fanout_estimate,
+            inverter,
+            inverter_area: table.implementation(inverter).area as f32,
+        })
+    }
+
+    /// Heap bytes held by the cover (cuts included).
+    pub fn memory_bytes(&self) -> usize {
+        self.cuts.memory_bytes()
+            + (self.choice.capacity() + self.refs.capacity()) * 4
+            + (self.arrival.capacity()
+                + self.flow.capacity()
+                + self.required.capacity()
+                + self.load.capacity()
+                + self.fanout_estimate.capacity())
+                * 4
+    }
+
+    fn inverter_delay(&self, node: usize) -> f32 {
+        self.table
+            .implementation(self.inverter)
+            .delay(self.load[node])
+    }
+
+    /// Implementation id of a match choice for phase `phase`.
+    #[inline]
+    fn implementation_of(&self, choice: u32, phase: usize) -> u32 {
+        let cut = (choice >> 2) as usize;
+        let slot = self.cuts.slot(cut) ^ phase as u32;
+        self.table.candidates(slot)[(choice & 3) as usize]
+    }
+
+    /// Sets the phases of a combinational input or constant.
+    fn map_source(&mut self, node: usize) {
+        let i = 2 * node;
+        self.choice[i] = FREE;
+        self.arrival[i] = 0.0;
+        self.flow[i] = 0.0;
+        if node == 0 {
+            self.choice[i + 1] = FREE;
+            self.arrival[i + 1] = 0.0;
+            self.flow[i + 1] = 0.0;
+        } else {
+            self.choice[i + 1] = INVERT;
+            self.arrival[i + 1] = self.inverter_delay(node);
+            self.flow[i + 1] = self.inverter_area / self.fanout_estimate[node];
+        }
+    }
+
+    #[inline]
+    fn evaluate(&self, node: usize, cut: usize, imp: u32) -> (f32, f32) {
+        let leaves = self.cuts.leaves(cut);
+        let m = self.table.implementation(imp);
+        let mut arrival = 0f32;
+        let mut flow = m.area as f32;
+        for u in &m.leaf_uses {
+            let idx = 2 * leaves[u.var as usize] as usize + u.complemented as usize;
+            arrival = arrival.max(self.arrival[idx] + u.delay);
+            flow += self.flow[idx];
+        }
+        (
+            arrival + m.root_per_load * self.load[node],
+            flow / self.fanout_estimate[node],
+        )
+    }
+
+    /// Chooses both phases of gate `node` by `rank` within required times.
+    fn select(&mut self, node: usize, rank: Rank) -> Result<(), MapError> {
+        let mut best = [Pick::EMPTY; 2];
+        let req = [self.required[2 * node], self.required[2 * node + 1]];
+        for cut in self.cuts.cuts(node) {
+            let slot = self.cuts.slot(cut);
+            if slot == NO_SLOT {
+                continue;
+            }
+            for (phase, best_phase) in best.iter_mut().enumerate() {
+                for (ci, &imp) in self
+                    .table
+                    .candidates(slot ^ phase as u32)
+                    .iter()
+                    .enumerate()
+                {
+                    let (arrival, flow) = self.evaluate(node, cut, imp);
+                    let pick = Pick {
+                        choice: ((cut as u32) << 2) | ci as u32,
+                        arrival,
+                        flow,
+                    };
+                    if better(&pick, best_phase, req[phase], rank) {
+                        *best_phase = pick;
+                    }
+                }
+            }
+        }
+        let inv_delay = self.inverter_delay(node);
+        let inv_flow = self.inverter_area / self.fanout_estimate[node];
+        for phase in 0..2 {
+            let other = best[1 - phase];
+            if other.choice == NONE || other.choice == INVERT {
+                continue;
+            }
+            let alt = Pick {
+                choice: INVERT,
+                arrival: other.arrival + inv_delay,
+                flow: other.flow + inv_flow,
+            };
+            if better(&alt, &best[phase], req[phase], rank) {
+                best[phase] = alt;
+            }
+        }
+        if best[0].choice == NONE || best[1].choice == NONE {
+            return Err(MapError::Unmappable(format!(
+                "no cell or cell combination of library '{}' matches node {} ({:?})",
+                self.lib.name,
+                node,
+                self.net.kind(NodeId(node as u32))
+            )));
+        }
+        for phase in 0..2 {
+            self.choice[2 * node + phase] = best[phase].choice;
+            self.arrival[2 * node + phase] = best[phase].arrival;
+            self.flow[2 * node + phase] = best[phase].flow;
+        }
+        Ok(())
+    }
+
+    /// Pass 1: enumerates priority cuts node by node and maps each node for
+    /// `rank` (delay, or area flow for the area goal).
+    pub fn enumerate_and_map(&mut self, cut_limit: usize, rank: Rank) -> Result<(), MapError> {
+        let mut scratch = Scratch::default();
+        let net = self.net;
+        for id in net.node_ids() {
+            let node = id.index();
+            let arrival = &self.arrival;
+            let flow = &self.flow;
+            let fanout = &self.fanout_estimate;
+            self.cuts.enumerate(
+                net,
+                id,
+                cut_limit,
+                rank == Rank::AreaFlow,
+                self.table,
+                |l| {
+                    let i = 2 * l as usize;
+                    (
+                        arrival[i].min(arrival[i + 1]),
+                        flow[i].min(flow[i + 1]) * fanout[l as usize],
+                    )
+                },
+                &mut scratch,
+            );
+            if net.is_gate(id) {
+                self.select(node, rank)?;
+            } else {
+                self.map_source(node);
+            }
+        }
+        Ok(())
+    }
+
+    /// Re-selects every gate for `rank` with the current required times.
+    pub fn reselect(&mut self, rank: Rank) -> Result<(), MapError> {
+        for id in self.net.node_ids() {
+            if self.net.is_gate(id) {
+                self.select(id.index(), rank)?;
+            } else {
+                self.map_source(id.index());
+            }
+        }
+        Ok(())
+    }
+
+    /// Phases of `node` in the order their references must be propagated
+    /// backwards (a phase derived by an inverter before its source).
+    #[inline]
+    fn backward_order(&self, node: usize) -> [usize; 2] {
+        if self.choice[2 * node + 1] == INVERT {
+            [1, 0]
+        } else {
+            [0, 1]
+        }
+    }
+
+    /// Calls `f(leaf_index, delay_through)` for each leaf phase the choice of
+    /// `node`'s `phase` reads.
+    #[inline]
+    fn for_each_leaf(&self, node: usize, phase: usize, mut f: impl FnMut(usize, f32)) {
+        let c = self.choice[2 * node + phase];
+        match c {
+            NONE | FREE => {}
+            INVERT => f(2 * node + (1 - phase), self.inverter_delay(node)),
+            _ => {
+                let imp = self.table.implementation(self.implementation_of(c, phase));
+                let leaves = self.cuts.leaves((c >> 2) as usize);
+                let tail = imp.root_per_load * self.load[node];
+                for u in &imp.leaf_uses {
+                    f(
+                        2 * leaves[u.var as usize] as usize + u.complemented as usize,
+                        u.delay + tail,
+                    );
+                }
+            }
+        }
+    }
+
+    /// Counts references of the current cover; returns the latest output
+    /// arrival.
+    pub fn mark(&mut self) -> f32 {
+        self.refs.fill(0);
+        let mut worst = 0f32;
+        for l in self.net.combinational_outputs() {
+            self.refs[l.raw() as usize] += 1;
+            worst = worst.max(self.arrival[l.raw() as usize]);
+        }
+        let mut refs = std::mem::take(&mut self.refs);
+        for node in (0..self.net.num_nodes()).rev() {
+            for phase in self.backward_order(node) {
+                if refs[2 * node + phase] > 0 {
+                    self.for_each_leaf(node, phase, |leaf, _| refs[leaf] += 1);
+                }
+            }
+        }
+        self.refs = refs;
+        worst
+    }
+
+    /// Propagates required times from `target` at every output through the
+    /// current cover (call [`Cover::mark`] first). Phases outside the cover
+    /// get no requirement.
+    pub fn set_required(&mut self, target: f32) {
+        let mut required = std::mem::take(&mut self.required);
+        required.fill(f32::INFINITY);
+        for l in self.net.combinational_outputs() {
+            let i = l.raw() as usize;
+            required[i] = required[i].min(target);
+        }
+        for node in (0..self.net.num_nodes()).rev() {
+            for phase in self.backward_order(node) {
+                let i = 2 * node + phase;
+                if self.refs[i] > 0 {
+                    let r = required[i];
+                    self.for_each_leaf(node, phase, |leaf, d| {
+                        required[leaf] = required[leaf].min(r - d);
+                    });
+                }
+            }
+        }
+        self.required = required;
+    }
+
+    /// Blends the fanout estimate towards the reference counts of the current
+    /// cover (call [`Cover::mark`] first).
+    pub fn update_fanout_estimate(&mut self) {
+        for node in 0..self.net.num_nodes() {
+            let r = (self.refs[2 * node] + self.refs[2 * node + 1]) as f32;
+            let e = &mut self.fanout_estimate[node];
+            *e = ((*e + r) / 2.0).max(1.0);
+        }
+    }
+
+    fn area_of(&self, phase: usize, choice: u32) -> f32 {
+        match choice {
+            NONE | FREE => 0.0,
+            INVERT => self.inverter_area,
+            c => {
+                self.table
+                    .implementation(self.implementation_of(c, phase))
+                    .area as f32
+            }
+        }
+    }
+
+    /// References the cone of `node`/`phase` under its current choice;
+    /// returns the area newly referenced.
+    fn reference(&mut self, node: usize, phase: usize, stack: &mut Vec<usize>) -> f32 {
+        let mut area = 0.0;
+        stack.clear();
+        stack.push(2 * node + phase);
+        while let Some(i) = stack.pop() {
+            let (n, p) = (i / 2, i % 2);
+            area += self.area_of(p, self.choice[i]);
+            let mut leaves: [usize; 12] = [0; 12];
+            let mut count = 0;
+            self.for_each_leaf_static(n, p, |leaf| {
+                leaves[count] = leaf;
+                count += 1;
+            });
+            for &leaf in &leaves[..count] {
+                self.refs[leaf] += 1;
+                if self.refs[leaf] == 1 {
+                    stack.push(leaf);
+                }
+            }
+        }
+        area
+    }
+
+    /// Releases the cone of `node`/`phase` under its current choice; returns
+    /// the area released.
+    fn dereference(&mut self, node: usize, phase: usize, stack: &mut Vec<usize>) -> f32 {
+        let mut area = 0.0;
+        stack.clear();
+        stack.push(2 * node + phase);
+        while let Some(i) = stack.pop() {
+            let (n, p) = (i / 2, i % 2);
+            area += self.area_of(p, self.choice[i]);
+            let mut leaves: [usize; 12] = [0; 12];
+            let mut count = 0;
+            self.for_each_leaf_static(n, p, |leaf| {
+                leaves[count] = leaf;
+                count += 1;
+            });
+            for &leaf in &leaves[..count] {
+                self.refs[leaf] -= 1;
+                if self.refs[leaf] == 0 {
+                    stack.push(leaf);
+                }
+            }
+        }
+        area
+    }
+
+    /// Like `for_each_leaf` without delays, usable while `refs` is borrowed.
+    #[inline]
+    fn for_each_leaf_static(&self, node: usize, phase: usize, mut f: impl FnMut(usize)) {
+        let c = self.choice[2 * node + phase];
+        match c {
+            NONE | FREE => {}
+            INVERT => f(2 * node + (1 - phase)),
+            _ => {
+                let imp = self.table.implementation(self.implementation_of(c, phase));
+                let leaves = self.cuts.leaves((c >> 2) as usize);
+                for u in &imp.leaf_uses {
+                    f(2 * leaves[u.var as usize] as usize + u.complemented as usize);
+                }
+            }
+        }
+    }
+
+    fn arrival_of(&self, node: usize, phase: usize, choice: u32) -> f32 {
+        self.cost_of(node, phase, choice).0
+    }
+
+    /// Arrival and area flow of `choice` for `node`'s `phase`.
+    fn cost_of(&self, node: usize, phase: usize, choice: u32) -> (f32, f32) {
+        match choice {
+            NONE => (f32::INFINITY, f32::INFINITY),
+            FREE => (0.0, 0.0),
+            INVERT => {
+                let o = 2 * node + 1 - phase;
+                (
+                    self.arrival[o] + self.inverter_delay(node),
+                    self.flow[o] + self.inverter_area / self.fanout_estimate[node],
+                )
+            }
+            c => self.evaluate(node, (c >> 2) as usize, self.implementation_of(c, phase)),
+        }
+    }
+
+    /// One exact-area pass over the current cover (call [`Cover::mark`] and
+    /// [`Cover::set_required`] first).
+    pub fn exact_area_pass(&mut self) {
+        let mut stack = Vec::new();
+        let mut options: Vec<u32> = Vec::new();
+        for id in self.net.node_ids() {
+            let node = id.index();
+            if !self.net.is_gate(id) {
+                continue;
+            }
+            // Real matches first, so an inverter is judged against them.
+            let order = if self.choice[2 * node] == INVERT {
+                [1, 0]
+            } else {
+                [0, 1]
+            };
+            for phase in order {
+                let i = 2 * node + phase;
+                // An unreferenced phase is chosen as if it were referenced, so
+                // a fanout that later picks it finds its best cone.
+                let referenced = self.refs[i] > 0;
+                let current = self.choice[i];
+                if referenced {
+                    self.dereference(node, phase, &mut stack);
+                }
+                options.clear();
+                for cut in self.cuts.cuts(node) {
+                    let slot = self.cuts.slot(cut);
+                    if slot == NO_SLOT {
+                        continue;
+                    }
+                    for ci in 0..self.table.candidates(slot ^ phase as u32).len() {
+                        options.push(((cut as u32) << 2) | ci as u32);
+                    }
+                }
+                let other = self.choice[2 * node + 1 - phase];
+                if other != INVERT && other != NONE {
+                    options.push(INVERT);
+                }
+                let mut best = current;
+                let mut best_area = f32::INFINITY;
+                let mut best_arrival = f32::INFINITY;
+                let mut best_flow = f32::INFINITY;
+                let req = self.required[i];
+                for &opt in &options {
+                    let (arrival, flow) = self.cost_of(node, phase, opt);
+                    self.choice[i] = opt;
+                    let area = self.reference(node, phase, &mut stack);
+                    self.dereference(node, phase, &mut stack);
+                    let feasible = arrival <= req + EPS;
+                    let best_feasible = best_arrival <= req + EPS;
+                    let take = if feasible != best_feasible {
+                        feasible
+                    } else if !feasible {
+                        arrival < best_arrival - EPS
+                    } else {
+                        area < best_area - EPS
+                            || (area <= best_area + EPS
+                                && (flow < best_flow - EPS
+                                    || (flow <= best_flow + EPS && arrival < best_arrival - EPS)))
+                    };
+                    if take {
+                        best = opt;
+                        best_area = area;
+                        best_arrival = arrival;
+                        best_flow = flow;
+                    }
+                }
+                self.choice[i] = best;
+                if referenced {
+                    self.reference(node, phase, &mut stack);
+                }
+                self.arrival[i] = best_arrival;
+                self.flow[i] = best_flow;
+            }
+            // Keep the arrival of an unreferenced or derived phase current.
+            for phase in 0..2 {
+                let i = 2 * node + phase;
+                if self.refs[i] == 0 || self.choice[i] == INVERT {
+                    self.arrival[i] = self.arrival_of(node, phase, self.choice[i]);
+                }
+            }
+        }
+    }
+
+    /// Area of the current cover (call [`Cover::mark`] first).
+    pub fn cover_area(&self) -> f64 {
+        let mut area = 0.0;
+        for node in 0..self.net.num_nodes() {
+            for phase in 0..2 {
+                if self.refs[2 * node + phase] > 0 {
+                    area += self.area_of(phase, self.choice[2 * node + phase]) as f64;
+                }
+            }
+        }
+        area
+    }
+
+    /// Builds the mapped netlist of the current cover (call [`Cover::mark`]
+    /// first).
+    pub fn extract(&self) -> MappedNetlist {
+        let net = self.net;
+        let lib = self.lib;
+        let mut out = MappedNetlist {
+            name: net.name().to_string(),
+            library: lib.name.clone(),
+            ..MappedNetlist::default()
+        };
+        let mut reserved: HashSet<&str> = HashSet::new();
+        for name in net.inputs().keys() {
+            reserved.insert(name);
+        }
+        for name in net.outputs().keys() {
+            reserved.insert(name);
+        }
+        for name in net.storage().keys() {
+            reserved.insert(name);
+        }
+        for s in net.storage().values() {
+            if let Some(c) = s.clock.as_deref() {
+                reserved.insert(c);
+            }
+        }
+        let fresh = |prefix: &str, i: usize| {
+            let mut name = format!("{prefix}{i}");
+            while reserved.contains(name.as_str()) {
+                name.push('_');
+            }
+            name
+        };
+        let mut net_of = vec![NONE; 2 * net.num_nodes()];
+        for (i, (name, id)) in net.inputs().iter().enumerate() {
+            let n = out.add_net(name.clone(), Driver::Input(i as u32));
+            net_of[2 * id.index()] = n;
+            out.inputs.push(Port {
+                name: name.clone(),
+                net: n,
+            });
+        }
+        for (i, (name, s)) in net.storage().iter().enumerate() {
+            let n = out.add_net(name.clone(), Driver::Storage(i as u32));
+            net_of[2 * s.output.index()] = n;
+        }
+        let mut constants = [NONE; 2];
+        let mut constant = |out: &mut MappedNetlist, c: bool| {
+            if constants[c as usize] == NONE {
+                let name = if c { "$true" } else { "$false" };
+                constants[c as usize] = out.add_net(name.to_string(), Driver::Constant(c));
+            }
+            constants[c as usize]
+        };
+        let mut local: Vec<NetId> = Vec::new();
+        for node in 0..net.num_nodes() {
+            if net.kind(NodeId(node as u32)) == NodeKind::Const {
+                for phase in 0..2 {
+                    if self.refs[2 * node + phase] > 0 {
+                        net_of[2 * node + phase] = constant(&mut out, phase == 1);
+                    }
+                }
+                continue;
+            }
+            let order = if self.choice[2 * node] == INVERT {
+                [1, 0]
+            } else {
+                [0, 1]
+            };
+            for phase in order {
+                let i = 2 * node + phase;
+                if self.refs[i] == 0 {
+                    continue;
+                }
+                match self.choice[i] {
+                    NONE | FREE => {}
+                    INVERT => {
+                        let src = net_of[2 * node + 1 - phase];
+                        debug_assert!(src != NONE);
+                        net_of[i] = self.instantiate(
+                            &mut out,
+                            self.inverter,
+                            &[src],
+                            &mut local,
+                            &mut constant,
+                            &fresh,
+                        );
+                    }
+                    c => {
+                        let leaves = self.cuts.leaves((c >> 2) as usize);
+                        let mut leaf_nets = [NONE; 12];
+                        let imp = self.implementation_of(c, phase);
+                        for u in &self.table.implementation(imp).leaf_uses {
+                            leaf_nets[2 * u.var as usize + u.complemented as usize] = net_of
+                                [2 * leaves[u.var as usize] as usize + u.complemented as usize];
+                        }
+                        net_of[i] = self.instantiate(
+                            &mut out,
+                            imp,
+                            &leaf_nets,
+                            &mut local,
+                            &mut constant,
+                            &fresh,
+                        );
+                    }
+                }
+            }
+        }
+        // Primary outputs keep their names.
+        let mut claimed: Vec<bool> = vec![false; out.nets.len()];
+        for (name, lit) in net.outputs() {
+            let mut n = net_of[lit.raw() as usize];
+            if n as usize >= claimed.len() {
+                claimed.resize(out.nets.len(), false);
+            }
+            let is_cell = matches!(out.nets[n as usize].driver, Driver::Cell(_));
+            if is_cell && !claimed[n as usize] {
+                out.nets[n as usize].name = name.clone();
+                claimed[n as usize] = true;
+            } else if out.nets[n as usize].name != *name {
+                if let Some(buffer) = self.table.buffer() {
+                    n = self.instantiate(&mut out, buffer, &[n], &mut local, &mut constant, &fresh);
+                    out.nets[n as usize].name = name.clone();
+                    claimed.resize(out.nets.len(), false);
+                    claimed[n as usize] = true;
+                }
+            }
+            out.outputs.push(Port {
+                name: name.clone(),
+                net: n,
+            });
+        }
+        for (name, s) in net.storage() {
+            let cell = lib.storage.first().map(|_| 0u32);
+            out.storage.push(StorageInstance {
+                name: name.clone(),
+                cell,
+                data: net_of[s.next.raw() as usize],
+                output: net_of[2 * s.output.index()],
+                clock: s.clock.clone(),
+                init: s.init,
+                kind: s.kind.clone(),
+            });
+        }
+        out
+    }
+
+    /// Instantiates implementation `imp`; `leaf_nets[2 * var + complemented]`
+    /// gives the net of each leaf phase (the inverter and the buffer read
+    /// only leaf 0 uncomplemented, so `[net]` suffices). Returns the output
+    /// net.
+    fn instantiate(
+        &self,
+        out: &mut MappedNetlist,
+        imp: u32,
+        leaf_nets: &[NetId],
+        local: &mut Vec<NetId>,
+        constant: &mut impl FnMut(&mut MappedNetlist, bool) -> NetId,
+        fresh: &impl Fn(&str, usize) -> String,
+    ) -> NetId {
+        let m = self.table.implementation(imp);
+        local.clear();
+        for gate in &m.gates {
+            let inputs: Vec<NetId> = gate
+                .inputs
+                .iter()
+                .map(|s| match *s {
+                    Source::Leaf { var, complemented } => {
+                        leaf_nets[2 * var as usize + complemented as usize]
+                    }
+                    Source::Gate(j) => local[j as usize],
+                    Source::Constant(c) => constant(out, c),
+                })
+                .collect();
+            let name = fresh("n", out.nets.len());
+            let n = out.add_instance(gate.cell, inputs, name);
+            let idx = out.instances.len() - 1;
+            out.instances[idx].name = fresh("g", idx);
+            local.push(n);
+        }
+        *local.last().expect("implementations have gates")
+    }
+}

@@ -1,0 +1,198 @@
+//! Implementations: small networks of library cells over the leaves of a cut.
+//!
+//! Every entry of the match table is an [`Implementation`]: one cell, or a
+//! supergate of a few cells, whose inputs are cut leaves in either phase or
+//! constants. Leaves used complemented are *not* inverted inside the
+//! implementation: the cover takes the complemented phase of the leaf node,
+//! which is either mapped directly or gets a shared inverter charged once.
+//! Extra implementations (for example optimum networks per NPN class from
+//! exact synthesis) are added with [`Implementation::new`] and
+//! `MatchTable::add`.
+
+use super::small_truth::{replicate, VAR_MASKS};
+use crate::library::Library;
+
+/// Where an input pin of a gate inside an implementation is connected.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum Source {
+    /// Cut leaf `var` (0-based position in the cut), possibly complemented.
+    Leaf {
+        /// Leaf position.
+        var: u8,
+        /// True when the complemented phase of the leaf is used.
+        complemented: bool,
+    },
+    /// The output of an earlier gate of the same implementation.
+    Gate(u8),
+    /// A constant tie.
+    Constant(bool),
+}
+
+/// One cell instance inside an implementation.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ImplGate {
+    /// Index of the cell in the library.
+    pub cell: u32,
+    /// One source per cell input pin, in pin order.
+    pub inputs: Vec<Source>,
+}
+
+/// How a leaf phase reaches the output: the worst delay from that leaf to
+/// the output, without the load-dependent part of the output gate.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct LeafUse {
+    /// Leaf position in the cut.
+    pub var: u8,
+    /// True when the leaf is used complemented.
+    pub complemented: bool,
+    /// Delay from this leaf to the output, the output gate's intrinsic delay
+    /// included, its load term excluded.
+    pub delay: f32,
+}
+
+/// A network of library cells computing one function of cut leaves.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Implementation {
+    /// The function, replicated six-variable table over the leaf positions.
+    pub function: u64,
+    /// Gates in topological order; the last one drives the output.
+    pub gates: Vec<ImplGate>,
+    /// Total cell area.
+    pub area: f64,
+    /// Total devices.
+    pub devices: u32,
+    /// Distinct leaf phases used, with their delays.
+    pub leaf_uses: Vec<LeafUse>,
+    /// `per_load` of the output gate, multiplied by the load it drives.
+    pub root_per_load: f32,
+}
+
+impl Implementation {
+    /// Builds an implementation from its gates (topological, last is the
+    /// output), computing function, area and pin delays from the library.
+    /// Returns `None` when a source refers to a later gate or a pin count
+    /// does not match its cell.
+    pub fn new(lib: &Library, gates: Vec<ImplGate>) -> Option<Implementation> {
+        if gates.is_empty() {
+            return None;
+        }
+        let mut tables: Vec<u64> = Vec::with_capacity(gates.len());
+        let mut area = 0.0;
+        let mut devices = 0;
+        // Load each gate's output drives inside the implementation.
+        let mut inner_load = vec![0.0f64; gates.len()];
+        for (g, gate) in gates.iter().enumerate() {
+            let cell = lib.cells.get(gate.cell as usize)?;
+            if cell.arity() != gate.inputs.len() {
+                return None;
+            }
+            for s in &gate.inputs {
+                match *s {
+                    Source::Gate(j) if (j as usize) < g => {
+                        inner_load[j as usize] += cell.input_load
+                    }
+                    Source::Gate(_) => return None,
+                    Source::Leaf { var, .. } if var >= 6 => return None,
+                    _ => {}
+                }
+            }
+        }
+        // Delay from each source to each gate output (excluding root load).
+        let mut leaf_delay: Vec<Vec<Option<f32>>> = Vec::with_capacity(gates.len());
+        for (g, gate) in gates.iter().enumerate() {
+            let cell = &lib.cells[gate.cell as usize];
+            area += cell.area;
+            devices += cell.devices;
+            let own = if g + 1 == gates.len() {
+                cell.delay.intrinsic
+            } else {
+                cell.delay.intrinsic + cell.delay.per_load * inner_load[g]
+            } as f32;
+            let mut ins = Vec::with_capacity(gate.inputs.len());
+            let mut arrival = vec![None::<f32>; 12];
+            for s in &gate.inputs {
+                let t = match *s {
+                    Source::Leaf { var, complemented } => {
+                        let slot = var as usize * 2 + complemented as usize;
+                        arrival[slot] = Some(arrival[slot].unwrap_or(0.0).max(own));
+                        let v = VAR_MASKS[var as usize];
+                        if complemented {
+                            !v
+                        } else {
+                            v
+                        }
+                    }
+                    Source::Gate(j) => {
+                        for (slot, d) in leaf_delay[j as usize].iter().enumerate() {
+                            if let Some(d) = d {
+                                let t = d + own;
+                                arrival[slot] = Some(arrival[slot].map_or(t, |a| a.max(t)));
+                            }
+                        }
+                        tables[j as usize]
+                    }
+                    Source::Constant(c) => {
+                        if c {
+                            u64::MAX
+                        } else {
+                            0
+                        }
+                    }
+                };
+                ins.push(t);
+            }
+            tables.push(evaluate_cell(cell.truth, &ins));
+            leaf_delay.push(arrival);
+        }
+        let root = &lib.cells[gates.last()?.cell as usize];
+        let leaf_uses = leaf_delay
+            .last()?
+            .iter()
+            .enumerate()
+            .filter_map(|(slot, d)| {
+                d.map(|delay| LeafUse {
+                    var: (slot / 2) as u8,
+                    complemented: slot % 2 == 1,
+                    delay,
+                })
+            })
+            .collect();
+        Some(Implementation {
+            function: *tables.last()?,
+            gates,
+            area,
+            devices,
+            leaf_uses,
+            root_per_load: root.delay.per_load as f32,
+        })
+    }
+
+    /// Worst leaf-to-output delay when the output drives `load`.
+    pub fn delay(&self, load: f32) -> f32 {
+        self.leaf_uses.iter().map(|u| u.delay).fold(0.0, f32::max) + self.root_per_load * load
+    }
+}
+
+/// The output table of a cell whose inputs carry the tables `inputs`
+/// (sum of the cell's minterms).
+#[inline]
+pub fn evaluate_cell(truth: u64, inputs: &[u64]) -> u64 {
+    let rows = 1usize << inputs.len();
+    let mut out = 0u64;
+    for r in 0..rows {
+        if (truth >> r) & 1 == 1 {
+            let mut m = u64::MAX;
+            for (i, &t) in inputs.iter().enumerate() {
+                m &= if (r >> i) & 1 == 1 { t } else { !t };
+            }
+            out |= m;
+        }
+    }
+    out
+}
+
+/// The cell truth table replicated over six variables.
+pub fn cell_table(lib: &Library, cell: usize) -> u64 {
+    let c = &lib.cells[cell];
+    replicate(c.truth, c.arity())
+}

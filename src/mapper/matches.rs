@@ -1,0 +1,287 @@
+//! The match table: from a cut function to the implementations that realise
+//! it, built once per library.
+//!
+//! Keys are replicated 64-bit truth tables over the cut leaves after support
+//! minimisation, so a lookup is one hash probe and needs no canonical form.
+//! Every function is stored next to its complement: slot `s` holds the
+//! implementations of `f` and slot `s ^ 1` those of `!f`, so a cut's one slot
+//! number gives the matches of both output phases. Per function the table
+//! keeps the cheapest implementation by area and the fastest by delay.
+
+use super::implementation::{ImplGate, Implementation, Source};
+use super::small_truth::{depends_on, var};
+use super::supergate;
+use crate::library::Library;
+use rustc_hash::FxHashMap;
+
+/// Marker for "no slot".
+pub const NO_SLOT: u32 = u32::MAX;
+
+/// Implementations per cut function, both phases side by side.
+#[derive(Clone, Debug)]
+pub struct MatchTable {
+    index: FxHashMap<u64, u32>,
+    slots: Vec<Vec<u32>>,
+    /// Every implementation the table refers to.
+    pub implementations: Vec<Implementation>,
+    /// Load assumed at a cell output when ranking by delay (mean input load).
+    pub typical_load: f32,
+    inverter: Option<u32>,
+    buffer: Option<u32>,
+}
+
+/// True when the variables `truth` depends on are exactly `0..m` for some m.
+fn prefix_support(truth: u64) -> bool {
+    let mut seen_gap = false;
+    for v in 0..6 {
+        if depends_on(truth, v) {
+            if seen_gap {
+                return false;
+            }
+        } else {
+            seen_gap = true;
+        }
+    }
+    true
+}
+
+impl MatchTable {
+    /// Builds the table for `lib`: single cells and supergates (see
+    /// [`supergate::generate`]).
+    pub fn build(lib: &Library) -> MatchTable {
+        let typical_load = if lib.cells.is_empty() {
+            1.0
+        } else {
+            (lib.cells.iter().map(|c| c.input_load).sum::<f64>() / lib.cells.len() as f64) as f32
+        };
+        let mut table = MatchTable {
+            index: FxHashMap::default(),
+            slots: Vec::new(),
+            implementations: Vec::new(),
+            typical_load,
+            inverter: None,
+            buffer: None,
+        };
+        for imp in supergate::generate(lib, typical_load) {
+            table.add(imp);
+        }
+        table.inverter = table.push_direct(lib, true);
+        table.buffer = table.push_direct(lib, false);
+        table
+    }
+
+    /// The cheapest single cell realising `x0` (or `!x0` when `complement`)
+    /// with its pins tied to leaf 0 uncomplemented or to constants; failing
+    /// that, for the buffer, two inverters in series. Stored outside the
+    /// lookup index, so it never reads the complemented leaf it may be
+    /// asked to produce.
+    fn push_direct(&mut self, lib: &Library, complement: bool) -> Option<u32> {
+        let want = if complement { !var(0) } else { var(0) };
+        let mut best: Option<Implementation> = None;
+        for (c, cell) in lib.cells.iter().enumerate() {
+            let a = cell.arity();
+            if a > 6 {
+                continue;
+            }
+            // Each pin: 0 = leaf, 1 = constant 0, 2 = constant 1.
+            let mut ties = vec![0usize; a];
+            loop {
+                if ties.contains(&0) {
+                    let inputs = ties
+                        .iter()
+                        .map(|&t| match t {
+                            0 => Source::Leaf {
+                                var: 0,
+                                complemented: false,
+                            },
+                            1 => Source::Constant(false),
+                            _ => Source::Constant(true),
+                        })
+                        .collect();
+                    if let Some(imp) = Implementation::new(
+                        lib,
+                        vec![ImplGate {
+                            cell: c as u32,
+                            inputs,
+                        }],
+                    ) {
+                        if imp.function == want && best.as_ref().map_or(true, |b| imp.area < b.area)
+                        {
+                            best = Some(imp);
+                        }
+                    }
+                }
+                let mut i = 0;
+                while i < a {
+                    ties[i] += 1;
+                    if ties[i] < 3 {
+                        break;
+                    }
+                    ties[i] = 0;
+                    i += 1;
+                }
+                if i == a {
+                    break;
+                }
+            }
+        }
+        if best.is_none() && !complement {
+            let inv = self.inverter?;
+            let g = self.implementations[inv as usize].gates[0].clone();
+            let mut second = g.clone();
+            second.inputs = second
+                .inputs
+                .iter()
+                .map(|s| match s {
+                    Source::Leaf { .. } => Source::Gate(0),
+                    other => *other,
+                })
+                .collect();
+            best = Implementation::new(lib, vec![g, second]);
+        }
+        let imp = best?;
+        self.implementations.push(imp);
+        Some((self.implementations.len() - 1) as u32)
+    }
+
+    /// Adds an implementation (for example an optimum network from exact
+    /// synthesis). It is kept if it is the cheapest by area or the fastest by
+    /// delay for its function. Functions that are constant or whose support
+    /// is not `0..m` are ignored.
+    pub fn add(&mut self, imp: Implementation) {
+        let f = imp.function;
+        if f == 0 || f == u64::MAX || !prefix_support(f) {
+            return;
+        }
+        let slot = self.slot_or_insert(f);
+        let id = self.implementations.len() as u32;
+        let load = self.typical_load;
+        let (area, delay) = (imp.area as f32, imp.delay(load));
+        let list = &self.slots[slot as usize];
+        let mut best_area = list.first().copied();
+        let mut best_delay = list.get(1).copied().or(best_area);
+        let cost = |i: u32, imps: &Vec<Implementation>| {
+            let m = &imps[i as usize];
+            (m.area as f32, m.delay(load))
+        };
+        let eps = 1e-6;
+        let mut used = false;
+        match best_area {
+            Some(b) => {
+                let (ba, bd) = cost(b, &self.implementations);
+                if area < ba - eps || (area <= ba + eps && delay < bd - eps) {
+                    best_area = Some(id);
+                    used = true;
+                }
+            }
+            None => {
+                best_area = Some(id);
+                used = true;
+            }
+        }
+        match best_delay {
+            Some(b) => {
+                let (ba, bd) = cost(b, &self.implementations);
+                if delay < bd - eps || (delay <= bd + eps && area < ba - eps) {
+                    best_delay = Some(id);
+                    used = true;
+                }
+            }
+            None => {
+                best_delay = Some(id);
+                used = true;
+            }
+        }
+        if !used {
+            return;
+        }
+        self.implementations.push(imp);
+        let mut list = vec![best_area.expect("set above")];
+        if let Some(d) = best_delay {
+            if d != list[0] {
+                list.push(d);
+            }
+        }
+        self.slots[slot as usize] = list;
+    }
+
+    fn slot_or_insert(&mut self, f: u64) -> u32 {
+        if let Some(&s) = self.index.get(&f) {
+            return s;
+        }
+        let s = self.slots.len() as u32;
+        self.slots.push(Vec::new());
+        self.slots.push(Vec::new());
+        self.index.insert(f, s);
+        self.index.insert(!f, s + 1);
+        s
+    }
+
+    /// The slot of function `f` (replicated table with support `0..m`), or
+    /// [`NO_SLOT`] when neither `f` nor `!f` has an implementation.
+    #[inline]
+    pub fn slot(&self, f: u64) -> u32 {
+        self.index.get(&f).copied().unwrap_or(NO_SLOT)
+    }
+
+    /// Implementations of the function of `slot`, cheapest by area first.
+    #[inline]
+    pub fn candidates(&self, slot: u32) -> &[u32] {
+        &self.slots[slot as usize]
+    }
+
+    /// The implementation with id `id`.
+    #[inline]
+    pub fn implementation(&self, id: u32) -> &Implementation {
+        &self.implementations[id as usize]
+    }
+
+    /// The cheapest implementation by area of `f`, if any.
+    pub fn best_area(&self, f: u64) -> Option<u32> {
+        let s = self.slot(f);
+        if s == NO_SLOT {
+            return None;
+        }
+        self.slots[s as usize].first().copied()
+    }
+
+    /// The inverter: cheapest implementation of `!x0`.
+    pub fn inverter(&self) -> Option<u32> {
+        self.inverter
+    }
+
+    /// The buffer: cheapest implementation of `x0`.
+    pub fn buffer(&self) -> Option<u32> {
+        self.buffer
+    }
+
+    /// True when a single cell over the leaves realises `f` in some phase.
+    pub fn has_function(&self, f: u64) -> bool {
+        let s = self.slot(f);
+        s != NO_SLOT
+            && (!self.slots[s as usize].is_empty() || !self.slots[(s ^ 1) as usize].is_empty())
+    }
+
+    /// Number of functions with at least one implementation.
+    pub fn num_functions(&self) -> usize {
+        self.slots.iter().filter(|s| !s.is_empty()).count()
+    }
+
+    /// A single-gate implementation of `cell` with pins on leaves `0..arity`
+    /// in order (convenience for callers adding their own entries).
+    pub fn single_cell(lib: &Library, cell: usize) -> Option<Implementation> {
+        let arity = lib.cells.get(cell)?.arity();
+        Implementation::new(
+            lib,
+            vec![ImplGate {
+                cell: cell as u32,
+                inputs: (0..arity as u8)
+                    .map(|v| Source::Leaf {
+                        var: v,
+                        complemented: false,
+                    })
+                    .collect(),
+            }],
+        )
+    }
+}

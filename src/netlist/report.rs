@@ -1,0 +1,108 @@
+//! The cost report of a mapped netlist: cell counts, area, devices, depth,
+//! delay, verification status and seconds per phase, as JSON (fields fixed
+//! by DESIGN.md) and as text for a terminal.
+
+use super::{MappedNetlist, TimingReport, Verified};
+use crate::library::Library;
+use indexmap::IndexMap;
+use std::fmt::Write;
+
+/// Everything `ribbonmap map` reports. The JSON field names are a contract.
+#[derive(Clone, Debug, PartialEq, serde::Serialize)]
+pub struct Report {
+    /// Design name.
+    pub design: String,
+    /// Library name.
+    pub library: String,
+    /// Mapping goal (`area`, `delay`, `balanced`).
+    pub goal: String,
+    /// Count of each cell used, in library order.
+    pub cells: IndexMap<String, usize>,
+    /// Number of cell instances (storage excluded).
+    pub cell_count: usize,
+    /// Total area (storage cells included), in the library's unit.
+    pub area: f64,
+    /// Most cells on any path.
+    pub depth: u32,
+    /// Latest arrival at an output, in the library's unit.
+    pub delay: f64,
+    /// Total devices of the cells.
+    pub devices: u64,
+    /// `proven`, `simulated` or `skipped`.
+    pub verified: Verified,
+    /// Seconds per phase.
+    pub seconds: IndexMap<String, f64>,
+    /// Storage elements.
+    pub storage: usize,
+    /// Units of area and delay.
+    pub units: IndexMap<String, String>,
+    /// Nets on the critical path, start first.
+    pub critical_path: Vec<String>,
+}
+
+impl Report {
+    /// Collects the report of `nl`.
+    pub fn new(
+        nl: &MappedNetlist,
+        lib: &Library,
+        goal: &str,
+        timing: &TimingReport,
+        verified: Verified,
+        seconds: IndexMap<String, f64>,
+    ) -> Report {
+        let mut units = IndexMap::new();
+        units.insert("area".to_string(), lib.units.area.clone());
+        units.insert("delay".to_string(), lib.units.delay.clone());
+        Report {
+            design: nl.name.clone(),
+            library: lib.name.clone(),
+            goal: goal.to_string(),
+            cells: nl.cell_counts(lib),
+            cell_count: nl.instances.len(),
+            area: nl.area(lib),
+            depth: timing.depth,
+            delay: timing.delay,
+            devices: nl.devices(lib),
+            verified,
+            seconds,
+            storage: nl.storage.len(),
+            units,
+            critical_path: timing
+                .critical_path
+                .iter()
+                .map(|s| match &s.cell {
+                    Some(c) => format!("{} ({c})", s.net),
+                    None => s.net.clone(),
+                })
+                .collect(),
+        }
+    }
+
+    /// The report laid out for a terminal.
+    pub fn to_text(&self) -> String {
+        let mut s = String::new();
+        let area_unit = self.units.get("area").map(String::as_str).unwrap_or("");
+        let delay_unit = self.units.get("delay").map(String::as_str).unwrap_or("");
+        let _ = writeln!(s, "design    {}", self.design);
+        let _ = writeln!(s, "library   {}", self.library);
+        let _ = writeln!(s, "goal      {}", self.goal);
+        let _ = writeln!(s, "cells     {}", self.cell_count);
+        let width = self.cells.keys().map(String::len).max().unwrap_or(0);
+        for (name, n) in &self.cells {
+            let _ = writeln!(s, "  {name:<width$}  {n:>8}");
+        }
+        if self.storage > 0 {
+            let _ = writeln!(s, "storage   {}", self.storage);
+        }
+        let _ = writeln!(s, "area      {:.2} {area_unit}", self.area);
+        let _ = writeln!(s, "devices   {}", self.devices);
+        let _ = writeln!(s, "depth     {}", self.depth);
+        let _ = writeln!(s, "delay     {:.3} {delay_unit}", self.delay);
+        let _ = writeln!(s, "verified  {}", self.verified.name());
+        let _ = writeln!(s, "seconds");
+        for (phase, t) in &self.seconds {
+            let _ = writeln!(s, "  {phase:<8}  {t:>9.4}");
+        }
+        s
+    }
+}

@@ -1,0 +1,219 @@
+//! Exact synthesis against outside references: the smallest-circuit gate
+//! counts of circuitdb 2.0.0 (tests/data/reference/exact/min-gates-3input.json,
+//! via PROVENANCE.md), and full-adder / majority facts checked by simulation.
+
+use ribbonmap::exact::{synthesize, ExactOptions, ExactResult, GateSpec, Objective};
+
+fn reference() -> serde_json::Value {
+    let text = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/data/reference/exact/min-gates-3input.json"
+    ))
+    .expect("reference file");
+    serde_json::from_str(&text).expect("reference JSON")
+}
+
+/// The gate sets the dataset names, every gate costing 1.
+fn basis(name: &str) -> Vec<GateSpec> {
+    let not = GateSpec::new("not", 1, 0b01, 1.0);
+    match name {
+        "every" => {
+            let mut g: Vec<GateSpec> = (0..16u64)
+                .map(|t| GateSpec::new(format!("f{t:X}"), 2, t, 1.0))
+                .collect();
+            g.push(not);
+            g
+        }
+        "and-or-not" => vec![
+            GateSpec::new("and2", 2, 0x8, 1.0),
+            GateSpec::new("or2", 2, 0xE, 1.0),
+            not,
+        ],
+        "and-xor-not" => vec![
+            GateSpec::new("and2", 2, 0x8, 1.0),
+            GateSpec::new("xor2", 2, 0x6, 1.0),
+            not,
+        ],
+        other => panic!("unknown basis {other}"),
+    }
+}
+
+fn check_simulates(result: &ExactResult, gates: &[GateSpec], functions: &[u64]) {
+    assert_eq!(result.simulate(gates), functions, "{:?}", result.netlist());
+    // Independent re-simulation through the logic network.
+    let net = result.to_network(gates);
+    assert_eq!(net.output_truth_tables().unwrap(), functions);
+}
+
+#[test]
+fn minimum_gate_counts_match_circuitdb_for_all_three_input_functions() {
+    // Source: circuitdb 2.0.0 (PyPI, MIT), min-gates-3input.json via PROVENANCE.md.
+    let data = reference();
+    for basis_name in ["every", "and-or-not", "and-xor-not"] {
+        let expected = data["min_gates"][basis_name].as_array().unwrap();
+        let gates = basis(basis_name);
+        let opts = ExactOptions {
+            max_steps: 10,
+            ..ExactOptions::default()
+        };
+        for t in 1u64..255 {
+            let result = synthesize(&[t], 3, &gates, &opts).unwrap();
+            check_simulates(&result, &gates, &[t]);
+            assert!(result.optimal);
+            assert_eq!(
+                result.cells as u64,
+                expected[t as usize].as_u64().unwrap(),
+                "basis {basis_name}, function 0x{t:02X}: {:?}",
+                result.netlist()
+            );
+        }
+    }
+}
+
+/// A gate set like ribbon3: every cell costs one.
+fn ribbon_like(with_majority: bool) -> Vec<GateSpec> {
+    let mut g = vec![
+        GateSpec::new("inv", 1, 0b01, 1.0),
+        GateSpec::new("buf", 1, 0b10, 1.0),
+        GateSpec::new("and2", 2, 0x8, 1.0),
+        GateSpec::new("nand2", 2, 0x7, 1.0),
+        GateSpec::new("or2", 2, 0xE, 1.0),
+        GateSpec::new("nor2", 2, 0x1, 1.0),
+        GateSpec::new("xor2", 2, 0x6, 1.0),
+        GateSpec::new("xnor2", 2, 0x9, 1.0),
+        GateSpec::new("and3", 3, 0x80, 1.0),
+        GateSpec::new("nand3", 3, 0x7F, 1.0),
+        GateSpec::new("or3", 3, 0xFE, 1.0),
+        GateSpec::new("nor3", 3, 0x01, 1.0),
+        GateSpec::new("xor3", 3, 0x96, 1.0),
+        GateSpec::new("xnor3", 3, 0x69, 1.0),
+    ];
+    if with_majority {
+        g.push(GateSpec::new("maj3", 3, 0xE8, 1.0));
+        g.push(GateSpec::new("minority3", 3, 0x17, 1.0));
+    }
+    g
+}
+
+#[test]
+fn full_adder_takes_majority_and_xor3() {
+    let gates = ribbon_like(true);
+    let functions = [0x96, 0xE8];
+    let result = synthesize(&functions, 3, &gates, &ExactOptions::default()).unwrap();
+    check_simulates(&result, &gates, &functions);
+    assert!(result.optimal);
+    assert_eq!(result.cells, 2);
+    let mut cells: Vec<&str> = result.steps.iter().map(|s| s.cell.as_str()).collect();
+    cells.sort();
+    assert_eq!(cells, ["maj3", "xor3"]);
+}
+
+#[test]
+fn majority_without_majority_cells_is_proven_minimal() {
+    let gates = ribbon_like(false);
+    let result = synthesize(&[0xE8], 3, &gates, &ExactOptions::default()).unwrap();
+    check_simulates(&result, &gates, &[0xE8]);
+    assert!(result.optimal);
+    // One step fewer is impossible: the search capped at that many steps fails.
+    let fewer = ExactOptions {
+        max_steps: result.cells - 1,
+        ..ExactOptions::default()
+    };
+    assert!(matches!(
+        synthesize(&[0xE8], 3, &gates, &fewer),
+        Err(ribbonmap::exact::ExactError::NotFound(_))
+    ));
+    // Hand-checked value: maj = or2(and2(a,b), and2(c, or2(a,b)))... needs 4
+    // two-input cells, but and3/or3 allow 3? The SAT answer is recorded here.
+    eprintln!(
+        "majority without maj3: {} cells: {:?}",
+        result.cells,
+        result.netlist()
+    );
+}
+
+#[test]
+fn full_adder_over_the_full_binary_basis_takes_five_gates() {
+    // Knuth, TAOCP Vol. 4A, 7.1.2, via PROVENANCE.md: a full adder needs five
+    // two-input gates over the full binary basis.
+    let gates: Vec<GateSpec> = (0..16u64)
+        .map(|t| GateSpec::new(format!("f{t:X}"), 2, t, 1.0))
+        .collect();
+    for free in [false, true] {
+        let opts = ExactOptions {
+            free_complements: free,
+            ..ExactOptions::default()
+        };
+        let result = synthesize(&[0x96, 0xE8], 3, &gates, &opts).unwrap();
+        check_simulates(&result, &gates, &[0x96, 0xE8]);
+        assert!(result.optimal);
+        assert_eq!(result.cells, 5);
+    }
+}
+
+#[test]
+fn area_and_depth_objectives() {
+    // Made-up costs: one xor3 (9) beats any two-input construction; on two
+    // inputs XOR takes four NAND2 (16), which beats tying xor3 to a constant
+    // made from cells (3 + 4 + 9 + 3 = 19).
+    let gates = vec![
+        GateSpec::new("inv", 1, 0b01, 3.0),
+        GateSpec::new("nand2", 2, 0x7, 4.0),
+        GateSpec::new("xor3", 3, 0x96, 9.0),
+    ];
+    let area_opts = ExactOptions {
+        objective: Objective::Area,
+        ..ExactOptions::default()
+    };
+    let area = synthesize(&[0x96], 3, &gates, &area_opts).unwrap();
+    check_simulates(&area, &gates, &[0x96]);
+    assert!(area.optimal);
+    assert_eq!(area.area, 9.0);
+    let area2 = synthesize(&[0x6], 2, &gates, &area_opts).unwrap();
+    check_simulates(&area2, &gates, &[0x6]);
+    assert!(area2.optimal);
+    assert_eq!((area2.area, area2.cells), (16.0, 4));
+
+    // Four-input AND from AND2: depth 2 (a balanced tree) with 3 cells.
+    let and_gates = [
+        GateSpec::new("and2", 2, 0x8, 1.0),
+        GateSpec::new("inv", 1, 1, 1.0),
+    ];
+    let depth_opts = ExactOptions {
+        objective: Objective::Depth,
+        ..ExactOptions::default()
+    };
+    let depth = synthesize(&[0x8000], 4, &and_gates, &depth_opts).unwrap();
+    check_simulates(&depth, &and_gates, &[0x8000]);
+    assert!(depth.optimal);
+    assert_eq!((depth.depth, depth.cells), (2, 3));
+}
+
+#[test]
+fn limits_stop_the_search_honestly() {
+    // A conflict budget of one learned clause cannot prove much: whatever
+    // comes back is either flagged unproven or an error, never a false claim.
+    let gates: Vec<GateSpec> = vec![
+        GateSpec::new("and2", 2, 0x8, 1.0),
+        GateSpec::new("or2", 2, 0xE, 1.0),
+        GateSpec::new("not", 1, 0x1, 1.0),
+    ];
+    let opts = ExactOptions {
+        conflict_limit: Some(1),
+        ..ExactOptions::default()
+    };
+    // and-or-not needs 8 gates for 0x69 (circuitdb 2.0.0 via PROVENANCE.md).
+    match synthesize(&[0x69], 3, &gates, &opts) {
+        Ok(r) => {
+            check_simulates(&r, &gates, &[0x69]);
+            assert!(r.cells >= 8);
+            if r.cells > 8 {
+                assert!(!r.optimal);
+            }
+        }
+        Err(e) => assert!(
+            matches!(e, ribbonmap::exact::ExactError::LimitReached),
+            "{e}"
+        ),
+    }
+}

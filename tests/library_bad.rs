@@ -1,0 +1,243 @@
+//! Broken library files in tests/data/bad-libraries are rejected, each with
+//! the offending cell and field named, both through the API and through
+//! `ribbonmap library check` (exit code 1, DESIGN.md contract).
+
+use assert_cmd::Command;
+use ribbonmap::library::Library;
+use std::path::PathBuf;
+
+fn bad(name: &str) -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/data/bad-libraries")
+        .join(format!("{name}.json"))
+}
+
+/// (file, cell, field, words the message must contain)
+const CASES: &[(&str, Option<&str>, Option<&str>, &str)] = &[
+    ("duplicate-names", Some("nand2"), Some("name"), "duplicate"),
+    (
+        "unused-input",
+        Some("and2x"),
+        Some("function"),
+        "input 'c' is not used",
+    ),
+    ("negative-area", Some("nand2"), Some("area"), "negative"),
+    (
+        "negative-delay",
+        Some("nand2"),
+        Some("delay.per_load"),
+        "negative",
+    ),
+    (
+        "negative-leakage",
+        Some("nand2"),
+        Some("leakage"),
+        "negative",
+    ),
+    (
+        "bad-expression",
+        Some("nand2"),
+        Some("function"),
+        "column 12",
+    ),
+    (
+        "unknown-name-in-expression",
+        Some("nand2"),
+        Some("function"),
+        "unknown name 'q'",
+    ),
+    (
+        "unknown-cell-field",
+        Some("nand2"),
+        Some("colour"),
+        "unknown field 'colour'",
+    ),
+    (
+        "unknown-library-field",
+        None,
+        Some("vendor"),
+        "unknown field 'vendor'",
+    ),
+    (
+        "missing-delay",
+        Some("nand2"),
+        Some("delay"),
+        "missing delay",
+    ),
+    (
+        "not-complete-and-or",
+        None,
+        Some("cells"),
+        "cannot build NOT",
+    ),
+    (
+        "not-complete-xor-inv",
+        None,
+        Some("cells"),
+        "cannot build AND",
+    ),
+    ("too-many-inputs", Some("and7"), Some("inputs"), "at most 6"),
+    (
+        "truth-too-wide",
+        Some("nand2"),
+        Some("truth"),
+        "bits above row 3",
+    ),
+    (
+        "function-and-truth",
+        Some("nand2"),
+        Some("truth"),
+        "not both",
+    ),
+    (
+        "leakage-rows",
+        Some("nand2"),
+        Some("leakage"),
+        "4 input rows",
+    ),
+    ("wrong-format", None, Some("format"), "unsupported format"),
+    (
+        "wrong-type",
+        Some("nand2"),
+        Some("area"),
+        "expected a number",
+    ),
+    ("not-json", None, None, "not valid JSON"),
+];
+
+#[test]
+fn every_broken_file_is_rejected_naming_cell_and_field() {
+    for &(file, cell, field, words) in CASES {
+        let err = Library::load(&bad(file)).expect_err(file);
+        assert!(!err.unreadable, "{file}");
+        let found = err.problems.iter().any(|p| {
+            p.cell.as_deref() == cell && p.field.as_deref() == field && p.message.contains(words)
+        });
+        assert!(
+            found,
+            "{file}: expected cell {cell:?} field {field:?} '{words}', got {:#?}",
+            err.problems
+        );
+        // Every problem of these files carries a line and column.
+        assert!(
+            err.problems.iter().all(|p| p.line > 0 && p.column > 0),
+            "{file}: {:#?}",
+            err.problems
+        );
+    }
+}
+
+#[test]
+fn positions_point_into_the_file() {
+    // bad-expression.json line 32 is `      "function": "!(a & (b | )",`: the
+    // expression starts at column 20 and its column 12 is file column 31.
+    let err = Library::load(&bad("bad-expression")).unwrap_err();
+    let p = &err.problems[0];
+    assert_eq!((p.line, p.column), (32, 31));
+    let text = std::fs::read_to_string(bad("bad-expression")).unwrap();
+    let line = text.lines().nth(31).unwrap();
+    assert_eq!(line.chars().nth(30), Some(')'));
+    // serde_json's own position for a syntax error.
+    let err = Library::load(&bad("not-json")).unwrap_err();
+    assert_eq!((err.problems[0].line, err.problems[0].column), (5, 22));
+}
+
+#[test]
+fn all_problems_are_listed() {
+    let err = Library::load(&bad("many-problems")).unwrap_err();
+    let cells: Vec<(&str, &str)> = err
+        .problems
+        .iter()
+        .map(|p| {
+            (
+                p.cell.as_deref().unwrap_or(""),
+                p.field.as_deref().unwrap_or(""),
+            )
+        })
+        .collect();
+    for expected in [
+        ("inv", "area"),
+        ("nand2", "speed"),
+        ("and3", "function"),
+        ("or2", "delay"),
+    ] {
+        assert!(
+            cells.contains(&expected),
+            "{expected:?} missing from {cells:?}"
+        );
+    }
+    let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    let out = cmd
+        .args(["library", "check"])
+        .arg(bad("many-problems"))
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    for needle in [
+        "cell 'inv', field 'area'",
+        "cell 'nand2', field 'speed'",
+        "cell 'and3', field 'function'",
+        "cell 'or2', field 'delay'",
+    ] {
+        assert!(stdout.contains(needle), "missing {needle} in {stdout}");
+    }
+}
+
+#[test]
+fn check_exits_one_for_every_broken_file() {
+    for &(file, cell, _, _) in CASES {
+        let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+        let out = cmd
+            .args(["library", "check"])
+            .arg(bad(file))
+            .output()
+            .unwrap();
+        assert_eq!(out.status.code(), Some(1), "{file}");
+        let stdout = String::from_utf8_lossy(&out.stdout);
+        if let Some(cell) = cell {
+            assert!(
+                stdout.contains(&format!("cell '{cell}'")),
+                "{file}: {stdout}"
+            );
+        }
+    }
+}
+
+#[test]
+fn check_exit_codes_for_sound_and_unreadable_files() {
+    let dir = tempfile::tempdir().unwrap();
+    let good = dir.path().join("good.json");
+    std::fs::write(&good, ribbonmap::library::builtin_text("ribbon3").unwrap()).unwrap();
+    let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.args(["library", "check"]).arg(&good).assert().code(0);
+    let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.args(["library", "check"])
+        .arg(dir.path().join("absent.json"))
+        .assert()
+        .code(2);
+    // --format json lists the problems with cell and field.
+    let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    let out = cmd
+        .args(["library", "check", "--format", "json"])
+        .arg(bad("negative-area"))
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(1));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["sound"], false);
+    assert_eq!(v["problems"][0]["cell"], "nand2");
+    assert_eq!(v["problems"][0]["field"], "area");
+}
+
+#[test]
+fn loading_a_broken_library_for_mapping_is_bad_input() {
+    // Other commands take --lib; a broken file there is bad input (exit 2).
+    let err =
+        ribbonmap::cli::common::load_library(bad("negative-area").to_str().unwrap()).unwrap_err();
+    assert_eq!(err.exit_code(), 2);
+    assert!(err.to_string().contains("negative-area.json:"));
+    let err = ribbonmap::cli::common::load_library("no-such-lib").unwrap_err();
+    assert_eq!(err.exit_code(), 2);
+    assert!(ribbonmap::cli::common::load_library("cmos-le").is_ok());
+}
