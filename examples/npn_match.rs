@@ -1,7 +1,7 @@
 //! Load the default library and find which cells realise a small function
 //! by NPN matching, printing how to wire each matching cell.
 //!
-//! Run: `cargo run --example npn_match -- 0x2A 3` (truth table, input count).
+//! Run: `cargo run --example npn_match -- 0x40 3` (truth table, input count).
 
 use ribbonmap::library::Library;
 use ribbonmap::truth::{npn_canon, parse_truth_word};
@@ -9,7 +9,7 @@ use ribbonmap::truth::{npn_canon, parse_truth_word};
 fn main() {
     let args: Vec<String> = std::env::args().collect();
     let inputs: usize = args.get(2).and_then(|s| s.parse().ok()).unwrap_or(3);
-    let text = args.get(1).map(String::as_str).unwrap_or("0x2A");
+    let text = args.get(1).map(String::as_str).unwrap_or("0x40");
     let truth = match parse_truth_word(text, inputs) {
         Ok(t) => t,
         Err(e) => {

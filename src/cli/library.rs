@@ -9,6 +9,16 @@ use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK};
 use crate::library::{builtin_text, function_texts, Leakage, Library};
 use crate::truth::TruthTable;
 use serde_json::json;
+use std::fmt::Write as _;
+use std::io::Write as _;
+
+/// Writes a command's output to standard output; a closed pipe (`| head`)
+/// is not an error worth a panic, so write failures are ignored.
+fn emit(text: &str) {
+    let mut stdout = std::io::stdout().lock();
+    let _ = stdout.write_all(text.as_bytes());
+    let _ = stdout.flush();
+}
 
 /// Output format of the `library` subcommands.
 #[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq, Default)]
@@ -70,6 +80,7 @@ fn first_sentence(text: &str) -> &str {
 }
 
 fn list(format: LibraryFormat) -> CmdResult {
+    let mut out = String::new();
     let libs: Vec<Library> = Library::builtin_names()
         .iter()
         .filter_map(|n| Library::builtin(n))
@@ -88,7 +99,8 @@ fn list(format: LibraryFormat) -> CmdResult {
                     })
                 })
                 .collect();
-            println!(
+            let _ = writeln!(
+                out,
                 "{}",
                 serde_json::to_string_pretty(&json!({ "libraries": items })).unwrap_or_default()
             );
@@ -101,7 +113,8 @@ fn list(format: LibraryFormat) -> CmdResult {
                 } else {
                     ""
                 };
-                println!(
+                let _ = writeln!(
+                    out,
                     "{:<width$}{:>3} cells  {}{}",
                     l.name,
                     l.cells.len(),
@@ -111,6 +124,7 @@ fn list(format: LibraryFormat) -> CmdResult {
             }
         }
     }
+    emit(&out);
     Ok(EXIT_OK)
 }
 
@@ -152,6 +166,7 @@ fn leakage_text(l: &Leakage) -> String {
 }
 
 fn show(spec: &str, format: LibraryFormat) -> CmdResult {
+    let mut out = String::new();
     let (lib, text) = read_library(spec)?;
     let functions = function_texts(&text);
     let function_of = |name: &str| -> String {
@@ -184,7 +199,7 @@ fn show(spec: &str, format: LibraryFormat) -> CmdResult {
                     })
                 })
                 .collect();
-            let out = json!({
+            let report = json!({
                 "name": lib.name,
                 "description": lib.description,
                 "units": lib.units,
@@ -194,15 +209,20 @@ fn show(spec: &str, format: LibraryFormat) -> CmdResult {
                 "cells": cells,
                 "storage": lib.storage,
             });
-            println!("{}", serde_json::to_string_pretty(&out).unwrap_or_default());
+            let _ = writeln!(
+                out,
+                "{}",
+                serde_json::to_string_pretty(&report).unwrap_or_default()
+            );
         }
         LibraryFormat::Text => {
-            println!("library {}", lib.name);
+            let _ = writeln!(out, "library {}", lib.name);
             if !lib.description.is_empty() {
-                println!("  {}", lib.description);
+                let _ = writeln!(out, "  {}", lib.description);
             }
             let u = &lib.units;
-            println!(
+            let _ = writeln!(
+                out,
                 "  units: area {}, delay {}, energy {}, power {}; primary output load {}{}",
                 u.area,
                 u.delay,
@@ -213,8 +233,8 @@ fn show(spec: &str, format: LibraryFormat) -> CmdResult {
                     .map(|v| format!("; supply {v} V"))
                     .unwrap_or_default()
             );
-            println!("  content hash {:016x}", lib.content_hash());
-            println!();
+            let _ = writeln!(out, "  content hash {:016x}", lib.content_hash());
+            let _ = writeln!(out);
             let rows: Vec<[String; 11]> = lib
                 .cells
                 .iter()
@@ -249,57 +269,69 @@ fn show(spec: &str, format: LibraryFormat) -> CmdResult {
                     *w = (*w).max(cell.chars().count());
                 }
             }
-            let line = |cols: Vec<&str>| {
+            let line = |cols: Vec<&str>| -> String {
                 let parts: Vec<String> = cols
                     .iter()
                     .zip(widths.iter())
                     .map(|(c, w)| format!("{c:<w$}"))
                     .collect();
-                println!("{}", parts.join("  ").trim_end());
+                parts.join("  ").trim_end().to_string()
             };
-            line(header.to_vec());
+            let _ = writeln!(out, "{}", line(header.to_vec()));
             for r in &rows {
-                line(r.iter().map(String::as_str).collect());
+                let _ = writeln!(out, "{}", line(r.iter().map(String::as_str).collect()));
             }
             for s in &lib.storage {
-                println!();
-                println!(
+                let _ = writeln!(out);
+                let _ = writeln!(
+                    out,
                     "storage {}: d {}, q {}, clock {}, area {}",
                     s.name, s.d, s.q, s.clock, s.area
                 );
             }
         }
     }
+    emit(&out);
     Ok(EXIT_OK)
 }
 
 fn check(file: &str, format: LibraryFormat) -> CmdResult {
+    let mut out = String::new();
     let result = Library::load(std::path::Path::new(file));
     match (result, format) {
         (Err(e), _) if e.unreadable => Err(CliError::Input(e.to_string())),
         (Ok(lib), LibraryFormat::Text) => {
-            println!(
+            let _ = writeln!(
+                out,
                 "{file}: library '{}' is sound: {} cells, {} storage cells",
                 lib.name,
                 lib.cells.len(),
                 lib.storage.len()
             );
+            emit(&out);
             Ok(EXIT_OK)
         }
         (Ok(lib), LibraryFormat::Json) => {
-            let out = json!({ "file": file, "sound": true, "name": lib.name, "cells": lib.cells.len(), "problems": [] });
-            println!("{}", serde_json::to_string_pretty(&out).unwrap_or_default());
+            let report = json!({ "file": file, "sound": true, "name": lib.name, "cells": lib.cells.len(), "problems": [] });
+            let _ = writeln!(
+                out,
+                "{}",
+                serde_json::to_string_pretty(&report).unwrap_or_default()
+            );
+            emit(&out);
             Ok(EXIT_OK)
         }
         (Err(e), LibraryFormat::Text) => {
             for line in e.lines() {
-                println!("{line}");
+                let _ = writeln!(out, "{line}");
             }
-            println!(
+            let _ = writeln!(
+                out,
                 "{file}: {} problem{} found",
                 e.problems.len(),
                 if e.problems.len() == 1 { "" } else { "s" }
             );
+            emit(&out);
             Ok(EXIT_NEGATIVE)
         }
         (Err(e), LibraryFormat::Json) => {
@@ -313,8 +345,13 @@ fn check(file: &str, format: LibraryFormat) -> CmdResult {
                     })
                 })
                 .collect();
-            let out = json!({ "file": file, "sound": false, "problems": problems });
-            println!("{}", serde_json::to_string_pretty(&out).unwrap_or_default());
+            let report = json!({ "file": file, "sound": false, "problems": problems });
+            let _ = writeln!(
+                out,
+                "{}",
+                serde_json::to_string_pretty(&report).unwrap_or_default()
+            );
+            emit(&out);
             Ok(EXIT_NEGATIVE)
         }
     }
