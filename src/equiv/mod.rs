@@ -20,6 +20,8 @@
 //!    groups nodes with equal values up to complement into candidate classes;
 //!    an output pair whose values already differ yields a counterexample at
 //!    once.
+//!    Miters with few inputs (16 by default) are instead proven by enumerating every
+//!    input pattern ([`exhaustive`]), a complete proof.
 //! 4. [`sweep`] proves candidate pairs bottom-up with the incremental SAT
 //!    [`oracle`] (varisat, lazily Tseitin-encoded cones, assumptions, a work
 //!    limit), merging what it proves and refining the classes with every
@@ -51,6 +53,7 @@
 //! ```
 
 mod classes;
+mod exhaustive;
 mod miter;
 mod oracle;
 mod ports;
@@ -98,6 +101,9 @@ pub struct EquivOptions {
     /// Sweep internal equivalences before proving outputs (turning this off
     /// leaves the outputs to plain SAT; useful only for measurements).
     pub sweep: bool,
+    /// Miters with at most this many inputs are proven by enumerating every
+    /// input pattern instead of by SAT (0 turns enumeration off).
+    pub enumerate_up_to: usize,
 }
 
 impl Default for EquivOptions {
@@ -108,6 +114,7 @@ impl Default for EquivOptions {
             sim_words: 16,
             seed: 0x5EED_0F_E0_01,
             sweep: true,
+            enumerate_up_to: 16,
         }
     }
 }
@@ -273,6 +280,20 @@ pub fn check_with_stats(
             },
             stats,
         });
+    }
+
+    // Narrow miters: enumerating every pattern is a complete proof.
+    let started = Instant::now();
+    if let Some(outcome) = exhaustive::enumerate(&miter, opts.enumerate_up_to) {
+        stats.simulation_seconds += started.elapsed().as_secs_f64();
+        let verdict = match outcome {
+            exhaustive::Enumerated::Equal => Verdict::Equivalent { outputs_checked },
+            exhaustive::Enumerated::Differ(pattern) => Verdict::Different {
+                counterexample: replay::replay(a, b, &ports, &miter, &pattern)?,
+                outputs_checked,
+            },
+        };
+        return Ok(EquivReport { verdict, stats });
     }
 
     let mut oracle = Oracle::new(opts.conflict_limit);
