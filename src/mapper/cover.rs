@@ -705,10 +705,12 @@ impl<'a> Cover<'a> {
                 }
             }
         }
-        // Primary outputs keep their names.
+        // Primary outputs keep their names. An output whose net already has
+        // another name (an input, another output, a constant, a storage
+        // output) becomes an alias: no buffer cell is spent on it.
         let mut claimed: Vec<bool> = vec![false; out.nets.len()];
         for (name, lit) in net.outputs() {
-            let mut n = net_of[lit.raw() as usize];
+            let n = net_of[lit.raw() as usize];
             if n as usize >= claimed.len() {
                 claimed.resize(out.nets.len(), false);
             }
@@ -716,13 +718,6 @@ impl<'a> Cover<'a> {
             if is_cell && !claimed[n as usize] {
                 out.nets[n as usize].name = name.clone();
                 claimed[n as usize] = true;
-            } else if out.nets[n as usize].name != *name {
-                if let Some(buffer) = self.table.buffer() {
-                    n = self.instantiate(&mut out, buffer, &[n], &mut local, &mut constant, &fresh);
-                    out.nets[n as usize].name = name.clone();
-                    claimed.resize(out.nets.len(), false);
-                    claimed[n as usize] = true;
-                }
             }
             out.outputs.push(Port {
                 name: name.clone(),
