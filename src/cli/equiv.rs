@@ -8,13 +8,13 @@ use std::path::{Path, PathBuf};
 
 use serde_json::{json, Map, Value};
 
-use super::common::Format;
+use super::common::{load_library, Format};
+use super::netlist_args::NetlistArgs;
 use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK, EXIT_UNDECIDED};
 use crate::equiv::{
     check_with_stats, parse_port_map, Counterexample, EquivError, EquivOptions, EquivReport,
     PortMatching, Verdict,
 };
-use crate::network::Network;
 
 /// Arguments of `ribbonmap equiv`.
 #[derive(clap::Args, Debug)]
@@ -24,7 +24,7 @@ pub struct Args {
     /// The second netlist.
     pub netlist_b: PathBuf,
     /// Cell library for mapped netlists that instantiate its cells (built-in
-    /// name or file).
+    /// name or file; default ribbon3).
     #[arg(long, value_name = "NAME|FILE")]
     pub lib: Option<String>,
     /// How ports are paired: `name`, `order`, or a port-map file with one
@@ -38,14 +38,9 @@ pub struct Args {
     /// Report format.
     #[arg(long, value_enum, default_value = "text")]
     pub format: Format,
-}
-
-fn read(path: &Path, lib_spec: Option<&str>) -> Result<Network, CliError> {
-    let _ = lib_spec;
-    Err(CliError::Input(format!(
-        "{}: cannot read netlists yet (the readers are not built)",
-        path.display()
-    )))
+    /// Reader options shared by the commands that read netlists.
+    #[command(flatten)]
+    pub netlist: NetlistArgs,
 }
 
 fn port_matching(spec: &str) -> Result<PortMatching, CliError> {
@@ -68,8 +63,9 @@ pub fn run(args: Args) -> CmdResult {
         ));
     }
     let ports = port_matching(&args.ports)?;
-    let a = read(&args.netlist_a, args.lib.as_deref())?;
-    let b = read(&args.netlist_b, args.lib.as_deref())?;
+    let library = load_library(args.lib.as_deref().unwrap_or("ribbon3"))?;
+    let a = args.netlist.read(&args.netlist_a, Some(&library))?;
+    let b = args.netlist.read(&args.netlist_b, Some(&library))?;
     let opts = EquivOptions {
         ports,
         conflict_limit: args.conflict_limit,

@@ -307,7 +307,7 @@ pub fn check_params(family: Family, params: &Params) -> Result<&'static str, Gen
             reason: format!("expected {lo} to {hi} {}", family.width_meaning()),
         });
     }
-    if family == Family::Majority && width % 2 == 0 {
+    if family == Family::Majority && width.is_multiple_of(2) {
         return Err(GenerateError::BadWidth {
             family,
             width,

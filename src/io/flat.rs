@@ -15,7 +15,8 @@
 
 use crate::diag::SourceError;
 use crate::network::{InitValue, Lit, Network};
-use rustc_hash::FxHashMap;
+use indexmap::IndexSet;
+use rustc_hash::FxBuildHasher;
 
 /// A source position: 1-based line and column (0, 0 when unknown).
 pub(crate) type Loc = (u32, u32);
@@ -125,7 +126,11 @@ pub(crate) struct StorageDecl {
 pub(crate) struct Flat {
     file: String,
     name: String,
-    names: FxHashMap<Box<str>, u32>,
+    /// Net names, each stored once; `name_net[i]` is the net of name `i`
+    /// and `net_name_index[net]` the name of a net (`u32::MAX`: unnamed).
+    names: IndexSet<Box<str>, FxBuildHasher>,
+    name_net: Vec<u32>,
+    net_name_index: Vec<u32>,
     drivers: Vec<Driver>,
     driver_loc: Vec<Loc>,
     use_loc: Vec<Loc>,
@@ -142,7 +147,9 @@ impl Flat {
         Flat {
             file: file.to_string(),
             name: String::new(),
-            names: FxHashMap::default(),
+            names: IndexSet::default(),
+            name_net: Vec::new(),
+            net_name_index: vec![u32::MAX],
             drivers: vec![Driver::Constant],
             driver_loc: vec![(0, 0)],
             use_loc: vec![(0, 0)],
@@ -166,11 +173,13 @@ impl Flat {
 
     /// The net named `name`, created when new.
     pub fn net(&mut self, name: &str) -> u32 {
-        if let Some(&id) = self.names.get(name) {
-            return id;
+        if let Some(i) = self.names.get_index_of(name) {
+            return self.name_net[i];
         }
         let id = self.anonymous();
-        self.names.insert(name.into(), id);
+        let (index, _) = self.names.insert_full(name.into());
+        self.name_net.push(id);
+        self.net_name_index[id as usize] = index as u32;
         id
     }
 
@@ -180,6 +189,7 @@ impl Flat {
         self.drivers.push(Driver::Undriven);
         self.driver_loc.push((0, 0));
         self.use_loc.push((0, 0));
+        self.net_name_index.push(u32::MAX);
         id
     }
 
@@ -197,11 +207,10 @@ impl Flat {
         if net == 0 {
             return "constant 0".to_string();
         }
-        self.names
-            .iter()
-            .find(|(_, &id)| id == net)
-            .map(|(n, _)| n.to_string())
-            .unwrap_or_else(|| format!("<expression #{net}>"))
+        match self.net_name_index[net as usize] {
+            u32::MAX => format!("<expression #{net}>"),
+            i => self.names[i as usize].to_string(),
+        }
     }
 
     fn set_driver(&mut self, net: u32, driver: Driver, loc: Loc) -> Result<(), SourceError> {
@@ -447,11 +456,10 @@ impl Flat {
 
     fn loop_error(&self, stack: &[(u32, u32)], child: u32) -> SourceError {
         let from = stack.iter().position(|&(n, _)| n == child).unwrap_or(0);
-        let reverse: FxHashMap<u32, &str> =
-            self.names.iter().map(|(name, &id)| (id, &**name)).collect();
         let mut names: Vec<String> = stack[from..]
             .iter()
-            .filter_map(|&(n, _)| reverse.get(&n).map(|s| s.to_string()))
+            .filter(|&&(n, _)| self.net_name_index[n as usize] != u32::MAX)
+            .map(|&(n, _)| self.net_name(n))
             .collect();
         if names.len() > 24 {
             let more = names.len() - 24;

@@ -97,6 +97,7 @@ pub fn read(text: &str, file: &str, opts: &ReadOptions) -> Result<Network, Sourc
         flat: Flat::new(file),
         cells: CellLookup::new(opts),
         active: Vec::new(),
+        unnamed: 0,
     };
     e.flat.set_name(modules[top].name);
     e.elaborate(top, "", None)?;
@@ -109,6 +110,7 @@ struct Elaborator<'a, 'm, 'o> {
     flat: Flat,
     cells: CellLookup<'o>,
     active: Vec<usize>,
+    unnamed: u32,
 }
 
 /// The module being elaborated and its net-name prefix.
@@ -674,7 +676,8 @@ impl<'a, 'm, 'o> Elaborator<'a, 'm, 'o> {
     ) -> Result<(), SourceError> {
         let cm: &'m Module<'a> = &self.modules[child];
         let inst = if name.is_empty() {
-            format!("{}${}", cm.name, loc.0)
+            self.unnamed += 1;
+            format!("{}${}", cm.name, self.unnamed)
         } else {
             name.to_string()
         };

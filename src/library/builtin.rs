@@ -6,6 +6,7 @@
 //! come from.
 
 use super::Library;
+use std::sync::OnceLock;
 
 /// Names of the built-in libraries, the default (`ribbon3`) first.
 const NAMES: &[&str] = &[
@@ -39,13 +40,20 @@ impl Library {
 
     /// The built-in library `name`, or `None` if there is no such built-in.
     ///
+    /// Each is parsed once per process and then cloned.
+    ///
     /// # Panics
     /// Only if an embedded file is broken, which the test suite rules out.
     pub fn builtin(name: &str) -> Option<Library> {
-        let text = builtin_text(name)?;
-        match Library::from_json_str(text, &format!("<builtin:{name}>")) {
-            Ok(lib) => Some(lib),
-            Err(e) => panic!("built-in library {name} is broken (a bug): {e}"),
-        }
+        static PARSED: [OnceLock<Library>; NAMES.len()] = [const { OnceLock::new() }; NAMES.len()];
+        let index = NAMES.iter().position(|n| *n == name)?;
+        let lib = PARSED[index].get_or_init(|| {
+            let text = builtin_text(name).expect("every listed built-in has a file");
+            match Library::from_json_str(text, &format!("<builtin:{name}>")) {
+                Ok(lib) => lib,
+                Err(e) => panic!("built-in library {name} is broken (a bug): {e}"),
+            }
+        });
+        Some(lib.clone())
     }
 }

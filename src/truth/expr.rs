@@ -64,7 +64,7 @@ impl Expr {
             Expr::Or(a, b) => a.eval(row) || b.eval(row),
             Expr::Maj(a, b, c) => {
                 let (a, b, c) = (a.eval(row), b.eval(row), c.eval(row));
-                (a && b) || (a && c) || (b && c)
+                (a as u8 + b as u8 + c as u8) >= 2
             }
         }
     }

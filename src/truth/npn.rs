@@ -109,9 +109,9 @@ impl NpnTransform {
     pub fn then(&self, next: &NpnTransform) -> NpnTransform {
         let mut perm = [0u8; 6];
         let mut input_neg = 0u8;
-        for j in 0..6 {
+        for (j, slot) in perm.iter_mut().enumerate() {
             let p1 = self.perm[j] as usize;
-            perm[j] = next.perm[p1];
+            *slot = next.perm[p1];
             let neg = ((self.input_neg >> j) & 1) ^ ((next.input_neg >> p1) & 1);
             input_neg |= neg << j;
         }
@@ -239,8 +239,8 @@ fn for_each_image(
 /// from variable perm[j]) is complemented when bit perm[j] of `mask` is set.
 fn transform_from(perm: &[u8; 6], mask: u8, output_neg: bool, n: usize) -> NpnTransform {
     let mut input_neg = 0u8;
-    for j in 0..n {
-        input_neg |= ((mask >> perm[j]) & 1) << j;
+    for (j, &p) in perm.iter().enumerate().take(n) {
+        input_neg |= ((mask >> p) & 1) << j;
     }
     NpnTransform {
         perm: *perm,

@@ -21,9 +21,15 @@ pub fn split_port(name: &str) -> (String, u32) {
     (name.to_string(), 0)
 }
 
-/// Bus names and widths, in declaration order.
-fn buses<'a>(names: impl Iterator<Item = &'a str>) -> (Vec<(String, u32)>, Vec<(usize, u32)>) {
-    let mut list: Vec<(String, u32)> = Vec::new();
+/// A bus: name and width.
+pub type Bus = (String, u32);
+
+/// For each port, its bus (index into the bus list) and bit.
+type PortBits = Vec<(usize, u32)>;
+
+/// Bus names and widths, in declaration order, and each port's place.
+fn buses<'a>(names: impl Iterator<Item = &'a str>) -> (Vec<Bus>, PortBits) {
+    let mut list: Vec<Bus> = Vec::new();
     let mut bits = Vec::new();
     for name in names {
         let (bus, bit) = split_port(name);
@@ -41,7 +47,7 @@ fn buses<'a>(names: impl Iterator<Item = &'a str>) -> (Vec<(String, u32)>, Vec<(
 }
 
 /// Input and output buses of a network: `(name, width)`.
-pub fn port_buses(net: &Network) -> (Vec<(String, u32)>, Vec<(String, u32)>) {
+pub fn port_buses(net: &Network) -> (Vec<Bus>, Vec<Bus>) {
     let (ins, _) = buses(net.inputs().keys().map(String::as_str));
     let (outs, _) = buses(net.outputs().keys().map(String::as_str));
     (ins, outs)
