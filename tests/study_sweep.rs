@@ -266,3 +266,31 @@ fn plan_errors_name_file_line_and_column() {
     let out = sweep(&plan, &dir.path().join("r.jsonl"), &["--shard", "4/3"]);
     assert_eq!(out.status.code(), Some(2));
 }
+
+#[test]
+fn example_plan_loads_and_expands() {
+    // examples/study_plan.json: 5 adder16 files, 3 multiplier4 files, 2
+    // majority9 files and 2 generated circuits, on 4 libraries with 2 goals
+    // (counted from the benchmarks/ listing).
+    let plan = ribbonmap::study::Plan::load(Path::new("examples/study_plan.json")).unwrap();
+    let files = |prefix: &str| {
+        std::fs::read_dir("benchmarks")
+            .unwrap()
+            .filter(|e| {
+                let name = e
+                    .as_ref()
+                    .unwrap()
+                    .file_name()
+                    .to_string_lossy()
+                    .to_string();
+                name.starts_with(prefix) && name.ends_with(".blif")
+            })
+            .count()
+    };
+    let benchmarks = files("adder16_") + files("multiplier4_") + files("majority9_") + 2;
+    assert_eq!(plan.benchmarks.len(), benchmarks);
+    assert_eq!(plan.jobs().len(), benchmarks * 4 * 2);
+    let slurm = std::fs::read_to_string("examples/study_slurm.sh").unwrap();
+    assert!(slurm.contains("#SBATCH --array="));
+    assert!(slurm.contains("--shard \"$SLURM_ARRAY_TASK_ID/$SLURM_ARRAY_TASK_COUNT\""));
+}

@@ -87,7 +87,13 @@ pub fn render_svg(table: &ComparisonTable, metric: Metric) -> String {
         .unwrap_or(0) as f64
         * 7.0
         + 40.0;
-    let margin_left = 60.0;
+    // Rotated labels reach left of their group: leave room for the first.
+    let margin_left = if rotate {
+        (longest_label as f64 * 6.5 * 0.77 - group_gap - group_width / 2.0 + 10.0)
+            .clamp(60.0, 220.0)
+    } else {
+        60.0
+    };
     let margin_top = 50.0;
     let plot_height = 280.0;
     let plot_width = (groups.len().max(1) as f64) * (group_width + group_gap) + group_gap;
@@ -130,10 +136,11 @@ pub fn render_svg(table: &ComparisonTable, metric: Metric) -> String {
             format_tick(v, step)
         );
     }
-    // Axis title.
+    // Axis title, left of the tick labels.
+    let axis_x = margin_left - 44.0;
     let _ = writeln!(
         s,
-        r#"<text x="16" y="{:.1}" text-anchor="middle" transform="rotate(-90 16 {:.1})">ratio ({})</text>"#,
+        r#"<text x="{axis_x:.1}" y="{:.1}" text-anchor="middle" transform="rotate(-90 {axis_x:.1} {:.1})">ratio ({})</text>"#,
         margin_top + plot_height / 2.0,
         margin_top + plot_height / 2.0,
         xml_escape(metric.name())

@@ -180,7 +180,25 @@ pub fn read_results(paths: &[PathBuf]) -> Result<MergedResults, SourceError> {
             merged.records.push(record);
         }
     }
+    sort_by_plan_position(&mut merged.records);
     Ok(merged)
+}
+
+/// Puts sweep records back in plan order (benchmark, library, goal as the
+/// plan lists them; a sweep writes them in completion order), so tables show
+/// libraries in plan order with the plan's first library as baseline.
+/// Records without a `plan_position` keep their order, after the others.
+pub fn sort_by_plan_position(records: &mut [StudyRecord]) {
+    let position = |r: &StudyRecord| -> (u8, u64, u64, u64) {
+        match r.extra.get("plan_position").and_then(|p| p.as_array()) {
+            Some(p) if p.len() == 3 => {
+                let at = |i: usize| p[i].as_u64().unwrap_or(u64::MAX);
+                (0, at(0), at(2), at(1))
+            }
+            _ => (1, 0, 0, 0),
+        }
+    };
+    records.sort_by_key(position);
 }
 
 #[cfg(test)]

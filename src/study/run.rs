@@ -174,6 +174,11 @@ pub fn run_sweep(
             record
                 .extra
                 .insert("benchmark_spec".into(), bench.spec.clone().into());
+            let goal_index = plan.goals.iter().position(|g| *g == job.goal).unwrap_or(0);
+            record.extra.insert(
+                "plan_position".into(),
+                serde_json::json!([job.benchmark, job.library, goal_index]),
+            );
             Ok(record)
         },
     )

@@ -136,6 +136,19 @@ impl ComparisonTable {
                 groups.push((r.benchmark.clone(), r.goal.clone()));
             }
         }
+        // Sweep records know their library's place in the plan: use it, so
+        // merged shards list libraries (and pick the baseline) as the plan
+        // does.
+        let plan_index = |lib: &str| -> u64 {
+            records
+                .iter()
+                .filter(|r| r.library == lib)
+                .filter_map(|r| r.extra.get("plan_position")?.get(1)?.as_u64())
+                .min()
+                .unwrap_or(u64::MAX)
+        };
+        let first_explicit = usize::from(baseline.is_some());
+        libraries[first_explicit..].sort_by_key(|l| plan_index(l));
         let baseline = libraries.first().cloned().unwrap_or_default();
         let mut rows = Vec::new();
         for (bench, goal) in &groups {
