@@ -62,7 +62,7 @@ fn trivial_cases_fold() {
 fn every_operator_matches_its_truth_table() {
     // Reference values: a = 0xAA, b = 0xCC, c = 0xF0 (DESIGN.md convention).
     let (mut n, [a, b, c]) = three_inputs();
-    let cases = [
+    let cases: [(Lit, u64); 6] = [
         (n.and(a, b), 0xAA & 0xCC),
         (n.or(a, b), 0xAA | 0xCC),
         (n.xor(a, !b), !(0xAA ^ 0xCC) & 0xFF),
@@ -74,7 +74,7 @@ fn every_operator_matches_its_truth_table() {
         (n.mux(c, a, b), (0xF0 & 0xAA) | (!0xF0 & 0xCC) & 0xFF),
     ];
     for (lit, expect) in cases {
-        assert_eq!(truth_of(&n, lit), expect as u64 & 0xFF);
+        assert_eq!(truth_of(&n, lit), expect & 0xFF);
     }
 }
 
