@@ -74,7 +74,7 @@ fn every_operator_matches_its_truth_table() {
         (n.mux(c, a, b), (0xF0 & 0xAA) | (!0xF0 & 0xCC) & 0xFF),
     ];
     for (lit, expect) in cases {
-        assert_eq!(truth_of(&n, lit), expect as u64 & 0xFF);
+        assert_eq!(truth_of(&n, lit), expect & 0xFF);
     }
 }
 
