@@ -143,12 +143,7 @@ impl<'a, 'm, 'o> Elaborator<'a, 'm, 'o> {
         }
     }
 
-    fn vector(
-        &self,
-        scope: &Scope,
-        name: &str,
-        loc: Loc,
-    ) -> Result<(i64, i64), SourceError> {
+    fn vector(&self, scope: &Scope, name: &str, loc: Loc) -> Result<(i64, i64), SourceError> {
         match scope.module.decls.get(name) {
             Some(Decl { range: Some(r), .. }) => Ok(*r),
             Some(_) => Err(self.err(loc, format!("'{name}' is a scalar and cannot be indexed"))),
