@@ -112,7 +112,7 @@ impl Default for EquivOptions {
             ports: PortMatching::ByName,
             conflict_limit: 200_000,
             sim_words: 16,
-            seed: 0x5EED_0F_E0_01,
+            seed: 0x5EED_F00D,
             sweep: true,
             enumerate_up_to: 16,
         }
