@@ -1,4 +1,4 @@
-//! Mapping speed and memory on a network of more than 100k nodes: a 128 x 128
+//! Mapping speed and memory on a network of more than 100k nodes: a 160 x 160
 //! array multiplier built from AND, XOR and majority, mapped onto the
 //! built-in ribbon3 library at k = 4, C = 8. Prints nodes per second per
 //! phase and the peak heap bytes per node (measured by a counting
@@ -72,7 +72,7 @@ fn main() {
     let t = Instant::now();
     let _ = match_table(&lib);
     let table_seconds = t.elapsed().as_secs_f64();
-    let net = multiplier(128);
+    let net = multiplier(160);
     let nodes = net.num_nodes();
     let opts = MapOptions::default();
     let base = CURRENT.load(Ordering::Relaxed);
@@ -106,7 +106,7 @@ fn main() {
     );
 
     let mut c = Criterion::default().sample_size(10).configure_from_args();
-    c.bench_function("map mult128 ribbon3 k4 c8", |b| {
+    c.bench_function("map mult160 ribbon3 k4 c8", |b| {
         b.iter(|| map_detailed(&net, &lib, &opts).expect("maps"))
     });
     c.final_summary();

@@ -33,6 +33,8 @@ const NONE: u32 = u32::MAX;
 const INVERT: u32 = u32::MAX - 1;
 const FREE: u32 = u32::MAX - 2;
 const EPS: f32 = 1e-4;
+/// Most node phases one trial of the exact-area pass walks.
+const TRIAL_LIMIT: usize = 24;
 
 /// What a selection pass optimises.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -259,10 +261,10 @@ impl<'a> Cover<'a> {
                 self.net.kind(NodeId(node as u32))
             )));
         }
-        for phase in 0..2 {
-            self.choice[2 * node + phase] = best[phase].choice;
-            self.arrival[2 * node + phase] = best[phase].arrival;
-            self.flow[2 * node + phase] = best[phase].flow;
+        for (phase, pick) in best.iter().enumerate() {
+            self.choice[2 * node + phase] = pick.choice;
+            self.arrival[2 * node + phase] = pick.arrival;
+            self.flow[2 * node + phase] = pick.flow;
         }
         Ok(())
     }
@@ -438,6 +440,46 @@ impl<'a> Cover<'a> {
         area
     }
 
+    /// Like [`Cover::reference`] for a trial: records every reference it
+    /// adds in `touched` (to be undone by the caller) and walks at most
+    /// [`TRIAL_LIMIT`] phases; a cone left unwalked is charged its area flow.
+    fn reference_trial(
+        &mut self,
+        node: usize,
+        phase: usize,
+        stack: &mut Vec<usize>,
+        touched: &mut Vec<usize>,
+    ) -> f32 {
+        let mut area = 0.0;
+        let mut walked = 0;
+        stack.clear();
+        touched.clear();
+        stack.push(2 * node + phase);
+        while let Some(i) = stack.pop() {
+            let (n, p) = (i / 2, i % 2);
+            if walked >= TRIAL_LIMIT {
+                area += self.flow[i];
+                continue;
+            }
+            walked += 1;
+            area += self.area_of(p, self.choice[i]);
+            let mut leaves: [usize; 12] = [0; 12];
+            let mut count = 0;
+            self.for_each_leaf_static(n, p, |leaf| {
+                leaves[count] = leaf;
+                count += 1;
+            });
+            for &leaf in &leaves[..count] {
+                self.refs[leaf] += 1;
+                touched.push(leaf);
+                if self.refs[leaf] == 1 {
+                    stack.push(leaf);
+                }
+            }
+        }
+        area
+    }
+
     /// Releases the cone of `node`/`phase` under its current choice; returns
     /// the area released.
     fn dereference(&mut self, node: usize, phase: usize, stack: &mut Vec<usize>) -> f32 {
@@ -504,10 +546,21 @@ impl<'a> Cover<'a> {
     /// [`Cover::set_required`] first).
     pub fn exact_area_pass(&mut self) {
         let mut stack = Vec::new();
+        let mut touched = Vec::new();
         let mut options: Vec<u32> = Vec::new();
         for id in self.net.node_ids() {
             let node = id.index();
             if !self.net.is_gate(id) {
+                continue;
+            }
+            // A node outside the cover is re-chosen by area flow with the
+            // current leaf costs, so a fanout that later picks it finds a
+            // good cone (its exact area would need its whole unreferenced
+            // cone to be walked).
+            if self.refs[2 * node] == 0 && self.refs[2 * node + 1] == 0 {
+                if self.select(node, Rank::AreaFlow).is_err() {
+                    unreachable!("a node mapped once always has a match");
+                }
                 continue;
             }
             // Real matches first, so an inverter is judged against them.
@@ -518,9 +571,10 @@ impl<'a> Cover<'a> {
             };
             for phase in order {
                 let i = 2 * node + phase;
-                // An unreferenced phase is chosen as if it were referenced, so
-                // a fanout that later picks it finds its best cone.
                 let referenced = self.refs[i] > 0;
+                if !referenced {
+                    continue;
+                }
                 let current = self.choice[i];
                 if referenced {
                     self.dereference(node, phase, &mut stack);
@@ -547,8 +601,10 @@ impl<'a> Cover<'a> {
                 for &opt in &options {
                     let (arrival, flow) = self.cost_of(node, phase, opt);
                     self.choice[i] = opt;
-                    let area = self.reference(node, phase, &mut stack);
-                    self.dereference(node, phase, &mut stack);
+                    let area = self.reference_trial(node, phase, &mut stack, &mut touched);
+                    for &t in &touched {
+                        self.refs[t] -= 1;
+                    }
                     let feasible = arrival <= req + EPS;
                     let best_feasible = best_arrival <= req + EPS;
                     let take = if feasible != best_feasible {

@@ -189,7 +189,7 @@ impl CutStore {
                 let worse = |x: &Candidate| {
                     (x.key.0, x.key.1, x.size)
                         .partial_cmp(&(key.0, key.1, size as u8))
-                        .map_or(false, |o| o.is_gt())
+                        .is_some_and(|o| o.is_gt())
                 };
                 if kept.len() >= limit && !worse(kept.last().expect("full")) {
                     return;
@@ -309,7 +309,7 @@ impl CutStore {
                 continue;
             }
             self.leaves.extend_from_slice(&leaves[..size]);
-            self.leaves.extend(std::iter::repeat(0).take(k - size));
+            self.leaves.extend(std::iter::repeat_n(0, k - size));
             self.sizes.push(size as u8);
             self.truths.push(t);
             self.slots.push(table.slot(t));

@@ -105,8 +105,7 @@ impl MatchTable {
                             inputs,
                         }],
                     ) {
-                        if imp.function == want && best.as_ref().map_or(true, |b| imp.area < b.area)
-                        {
+                        if imp.function == want && best.as_ref().is_none_or(|b| imp.area < b.area) {
                             best = Some(imp);
                         }
                     }

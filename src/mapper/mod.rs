@@ -125,7 +125,8 @@ pub fn map(net: &Network, lib: &Library, opts: &MapOptions) -> Result<MappedNetl
 
 /// The match table of `lib`, built once per process and library and shared.
 pub fn match_table(lib: &Library) -> Arc<MatchTable> {
-    static CACHE: OnceLock<Mutex<Vec<(Library, Arc<MatchTable>)>>> = OnceLock::new();
+    type Cache = Mutex<Vec<(Library, Arc<MatchTable>)>>;
+    static CACHE: OnceLock<Cache> = OnceLock::new();
     let cache = CACHE.get_or_init(|| Mutex::new(Vec::new()));
     {
         let guard = cache.lock().unwrap_or_else(|e| e.into_inner());
@@ -185,7 +186,7 @@ pub fn map_detailed(
             opts.cuts_per_node
         )));
     }
-    if !(opts.delay_slack >= 0.0) {
+    if opts.delay_slack.is_nan() || opts.delay_slack < 0.0 {
         return Err(MapError::InvalidOptions(
             "delay slack must be non-negative".into(),
         ));

@@ -99,20 +99,20 @@ fn eval16(truth: u64, inputs: &[u16]) -> u16 {
 
 fn atoms() -> Vec<(Source, u16)> {
     let mut a = Vec::new();
-    for v in 0..VARS {
+    for (v, &table) in VAR16.iter().enumerate() {
         a.push((
             Source::Leaf {
                 var: v as u8,
                 complemented: false,
             },
-            VAR16[v],
+            table,
         ));
         a.push((
             Source::Leaf {
                 var: v as u8,
                 complemented: true,
             },
-            !VAR16[v],
+            !table,
         ));
     }
     a.push((Source::Constant(false), 0));

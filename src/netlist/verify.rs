@@ -73,11 +73,11 @@ pub fn verify(
     match mode {
         VerifyMode::None => Ok(Verified::Skipped),
         VerifyMode::Sim => {
-            simulate_against(original, mapped, SIM_WORDS, 0x5EED_0F_4A11)?;
+            simulate_against(original, mapped, SIM_WORDS, 0x005E_ED0F_4A11)?;
             Ok(Verified::Simulated)
         }
         VerifyMode::Full => {
-            simulate_against(original, mapped, SIM_WORDS, 0x5EED_0F_4A11)?;
+            simulate_against(original, mapped, SIM_WORDS, 0x005E_ED0F_4A11)?;
             let opts = crate::equiv::EquivOptions::default();
             match crate::equiv::check(original, mapped, &opts) {
                 Ok(crate::equiv::Verdict::Equivalent { .. }) => Ok(Verified::Proven),
