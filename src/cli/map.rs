@@ -6,7 +6,7 @@
 
 use super::common::{load_library, Format};
 use super::{CliError, CmdResult, EXIT_OK};
-use crate::io::{read_netlist, ReadOptions};
+use crate::cli::netlist_args::NetlistArgs;
 use crate::mapper::{map_detailed, Goal, MapOptions};
 use crate::netlist::{analyze_timing, verify, Report, VerifyMode};
 use std::path::PathBuf;
@@ -49,7 +49,7 @@ pub struct Args {
     #[arg(short = 'o', long = "output", value_name = "OUT.v|OUT.blif")]
     pub output: Option<PathBuf>,
     /// How to check the result against the input.
-    #[arg(long, value_enum, default_value = "sim")]
+    #[arg(long, value_enum, default_value = "full")]
     pub verify: VerifyArg,
     /// Largest cut (2 to 6).
     #[arg(long, value_name = "K", default_value_t = 4)]
@@ -60,6 +60,9 @@ pub struct Args {
     /// Report format.
     #[arg(long, value_enum, default_value = "text")]
     pub format: Format,
+    /// How to read the netlist.
+    #[command(flatten)]
+    pub reading: NetlistArgs,
 }
 
 /// Runs the command.
@@ -79,11 +82,7 @@ pub fn run(args: Args) -> CmdResult {
         },
     };
     let t = Instant::now();
-    let read_opts = ReadOptions {
-        library: Some(&lib),
-        ..ReadOptions::default()
-    };
-    let net = read_netlist(&args.netlist, &read_opts)?;
+    let net = args.reading.read(&args.netlist, Some(&lib))?;
     let read_seconds = t.elapsed().as_secs_f64();
     let goal = match args.goal {
         GoalArg::Area => Goal::Area,
