@@ -103,6 +103,12 @@ impl Report {
         for (phase, t) in &self.seconds {
             let _ = writeln!(s, "  {phase:<8}  {t:>9.4}");
         }
+        if !self.critical_path.is_empty() {
+            let _ = writeln!(s, "critical path, start first");
+            for step in &self.critical_path {
+                let _ = writeln!(s, "  {step}");
+            }
+        }
         s
     }
 }
