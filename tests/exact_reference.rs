@@ -153,9 +153,11 @@ fn full_adder_over_the_full_binary_basis_takes_five_gates() {
 
 #[test]
 fn area_and_depth_objectives() {
-    // Made-up costs: one xor3 (9) beats any two-input construction; on two
-    // inputs XOR takes four NAND2 (16), which beats tying xor3 to a constant
-    // made from cells (3 + 4 + 9 + 3 = 19).
+    // Made-up costs: one xor3 (9) beats any two-input construction. On two
+    // inputs, four NAND2 cost 16, and so does xor3(x1, !x0, 1) with the
+    // constant made as nand2(x0, !x0): 3 + 4 + 9 = 16 in three cells; no
+    // network is cheaper (hand check: every network needs a cell reading
+    // both inputs, nand2 alone or xor3 with a constant).
     let gates = vec![
         GateSpec::new("inv", 1, 0b01, 3.0),
         GateSpec::new("nand2", 2, 0x7, 4.0),
@@ -172,7 +174,7 @@ fn area_and_depth_objectives() {
     let area2 = synthesize(&[0x6], 2, &gates, &area_opts).unwrap();
     check_simulates(&area2, &gates, &[0x6]);
     assert!(area2.optimal);
-    assert_eq!((area2.area, area2.cells), (16.0, 4));
+    assert_eq!(area2.area, 16.0);
 
     // Four-input AND from AND2: depth 2 (a balanced tree) with 3 cells.
     let and_gates = [

@@ -38,8 +38,11 @@ pub struct OptimumDatabase {
     options: ExactOptions,
     /// (inputs, class representative) to its implementation (`None`: none
     /// within the limits).
-    entries: RwLock<HashMap<(usize, u64), Option<Arc<ExactResult>>>>,
+    entries: RwLock<EntryMap>,
 }
+
+/// (inputs, class representative) to the stored implementation.
+type EntryMap = HashMap<(usize, u64), Option<Arc<ExactResult>>>;
 
 #[derive(Serialize, Deserialize)]
 struct DatabaseFile {

@@ -93,6 +93,8 @@ enum Value {
 }
 
 /// Builds and solves the instance for `shape`.
+// Steps, rows and patterns index several parallel arrays at once.
+#[allow(clippy::needless_range_loop)]
 pub(crate) fn solve(problem: &Problem, shape: &Shape, budget: &Budget) -> Outcome {
     let k = shape.steps;
     let n = problem.inputs;
