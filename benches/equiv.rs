@@ -10,7 +10,6 @@ use ribbonmap::equiv::{check_with_stats, EquivOptions, Verdict};
 use ribbonmap::network::{Lit, Network};
 
 #[path = "../tests/equiv_support/mod.rs"]
-#[allow(dead_code)]
 mod equiv_support;
 
 /// Full adder in the multiplier's own style: `xor_style` uses XOR nodes and
@@ -52,12 +51,12 @@ fn array_multiplier(n: usize, xor_style: bool) -> Network {
     let mut product = Vec::new();
     // Running sum of the rows so far, bits i.. of the product.
     let mut acc: Vec<Lit> = (0..n).map(|j| net.and(a[j], b[0])).collect();
-    for row in 1..n {
+    for &b_row in &b[1..n] {
         product.push(acc[0]);
         let mut next = Vec::with_capacity(n);
         let mut carry = Lit::FALSE;
         for j in 0..n {
-            let pp = net.and(a[j], b[row]);
+            let pp = net.and(a[j], b_row);
             let upper = if j + 1 < n { acc[j + 1] } else { Lit::FALSE };
             let (s, c) = full_adder(&mut net, pp, upper, carry, xor_style);
             next.push(s);

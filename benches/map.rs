@@ -46,12 +46,12 @@ fn multiplier(n: usize) -> Network {
     let mut acc: Vec<Lit> = (0..n).map(|j| net.and(a[j], b[0])).collect();
     acc.push(Lit::FALSE);
     let mut outputs = Vec::new();
-    for i in 1..n {
+    for &b_i in &b[1..n] {
         outputs.push(acc[0]);
         let mut carry = Lit::FALSE;
         let mut next = Vec::with_capacity(n + 1);
         for j in 0..n {
-            let pp = net.and(a[j], b[i]);
+            let pp = net.and(a[j], b_i);
             let x = acc[j + 1];
             let t = net.xor(x, pp);
             next.push(net.xor(t, carry));

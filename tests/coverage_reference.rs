@@ -24,9 +24,9 @@ fn three_input_coverage_matches_circuitdb_histogram() {
     let data: serde_json::Value = serde_json::from_str(&text).unwrap();
     let counts = data["min_gates"]["every"].as_array().unwrap();
     let mut expected: BTreeMap<usize, u64> = BTreeMap::new();
-    for t in 1..255 {
+    for count in &counts[1..255] {
         *expected
-            .entry(counts[t].as_u64().unwrap() as usize)
+            .entry(count.as_u64().unwrap() as usize)
             .or_insert(0) += 1;
     }
     // Constants cost 0 here; the dataset's constant entries are left out.

@@ -1,14 +1,8 @@
 //! Shared helpers of the equivalence tests: reading the ISCAS-85 reference
 //! netlists, mutating networks and exhaustive simulation.
-//!
-//! The netlist reader here is a deliberately tiny test fixture for the
-//! gate-level Verilog subset of tests/data/reference/netlists/iscas85
-//! (primitive gates with the output first, `assign` of a net or a constant);
-//! the product reader lives in `ribbonmap::io`.
 #![allow(dead_code)]
 
 use ribbonmap::network::{Lit, Network, NodeId, NodeKind, SplitMix64};
-use std::collections::HashMap;
 
 /// Directory of the ISCAS-85 reference netlists (circuitgraph 0.2.1, via
 /// PROVENANCE.md).
@@ -22,97 +16,15 @@ pub const CIRCUITS: [&str; 11] = [
     "c17", "c432", "c499", "c880", "c1355", "c1908", "c2670", "c3540", "c5315", "c6288", "c7552",
 ];
 
-/// Reads one of the gate-level reference netlists.
-pub fn read_gate_verilog(path: &str) -> Network {
-    let text = std::fs::read_to_string(path).unwrap_or_else(|e| panic!("{path}: {e}"));
-    let text: String = text
-        .lines()
-        .map(|l| l.split("//").next().unwrap_or(""))
-        .collect::<Vec<_>>()
-        .join("\n");
-    let mut inputs = Vec::new();
-    let mut outputs = Vec::new();
-    let mut defs: HashMap<String, (String, Vec<String>)> = HashMap::new();
-    let mut name = String::from("top");
-    for statement in text.split(';') {
-        let statement = statement.trim();
-        if statement.is_empty() || statement == "endmodule" {
-            continue;
-        }
-        let statement = statement.trim_start_matches("endmodule").trim();
-        let (keyword, rest) = statement
-            .split_once(char::is_whitespace)
-            .unwrap_or((statement, ""));
-        let list = |s: &str| -> Vec<String> {
-            s.split(',')
-                .map(|x| x.trim().to_string())
-                .filter(|x| !x.is_empty())
-                .collect()
-        };
-        match keyword {
-            "module" => name = rest.split('(').next().unwrap().trim().to_string(),
-            "input" => inputs.extend(list(rest)),
-            "output" => outputs.extend(list(rest)),
-            "wire" => {}
-            "assign" => {
-                let (lhs, rhs) = rest.split_once('=').unwrap();
-                defs.insert(lhs.trim().into(), ("buf".into(), vec![rhs.trim().into()]));
-            }
-            gate => {
-                let open = rest.find('(').unwrap();
-                let close = rest.rfind(')').unwrap();
-                let pins = list(&rest[open + 1..close]);
-                defs.insert(pins[0].clone(), (gate.to_string(), pins[1..].to_vec()));
-            }
-        }
-    }
-    let mut net = Network::new(name);
-    let mut lits: HashMap<String, Lit> = HashMap::new();
-    for i in &inputs {
-        lits.insert(i.clone(), net.add_input(i.clone()).unwrap());
-    }
-    fn build(
-        n: &str,
-        net: &mut Network,
-        lits: &mut HashMap<String, Lit>,
-        defs: &HashMap<String, (String, Vec<String>)>,
-    ) -> Lit {
-        if let Some(&l) = lits.get(n) {
-            return l;
-        }
-        if n == "1'b0" {
-            return Lit::FALSE;
-        }
-        if n == "1'b1" {
-            return Lit::TRUE;
-        }
-        let (gate, ins) = defs.get(n).unwrap_or_else(|| panic!("undriven net {n}"));
-        let ins: Vec<Lit> = ins.iter().map(|i| build(i, net, lits, defs)).collect();
-        let lit = match gate.as_str() {
-            "and" => net.and_many(&ins),
-            "nand" => !net.and_many(&ins),
-            "or" => net.or_many(&ins),
-            "nor" => !net.or_many(&ins),
-            "xor" => net.xor_many(&ins),
-            "xnor" => !net.xor_many(&ins),
-            "not" => !ins[0],
-            "buf" => ins[0],
-            other => panic!("unknown gate {other}"),
-        };
-        lits.insert(n.to_string(), lit);
-        lit
-    }
-    for o in &outputs {
-        let l = build(o, &mut net, &mut lits, &defs);
-        net.add_output(o.clone(), l).unwrap();
-    }
-    net
-}
-
 /// Reads `cNNN.v` (or `cNNNg.v` when `resynthesised`).
 pub fn iscas(circuit: &str, resynthesised: bool) -> Network {
     let suffix = if resynthesised { "g" } else { "" };
-    read_gate_verilog(&format!("{ISCAS85}/{circuit}{suffix}.v"))
+    let path = format!("{ISCAS85}/{circuit}{suffix}.v");
+    ribbonmap::io::read_netlist(
+        std::path::Path::new(&path),
+        &ribbonmap::io::ReadOptions::default(),
+    )
+    .unwrap_or_else(|e| panic!("{e}"))
 }
 
 /// How a mutation changed a network.
