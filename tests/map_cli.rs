@@ -47,7 +47,8 @@ fn json_report_has_the_contract_fields() {
     }
     assert_eq!(v["library"], "ribbon3");
     assert_eq!(v["goal"], "area");
-    assert_eq!(v["verified"], "simulated");
+    // `--verify full` is the default: the report must say the mapping was proven.
+    assert_eq!(v["verified"], "proven");
     // 8-bit ripple-carry adder (ariths-gen, via PROVENANCE.md): 2n = 16 cells at most.
     assert!(v["cell_count"].as_u64().unwrap() <= 16);
     let text = std::fs::read_to_string(&out).unwrap();
