@@ -11,8 +11,9 @@
 //!
 //! ```
 //! use ribbonmap::exact::{GateSpec, OptimumDatabase, ExactOptions};
-//! let gates = vec![GateSpec::new("nand2", 2, 0x7, 1.0)];
-//! let db = OptimumDatabase::new("nand-only", gates, ExactOptions::default());
+//! let gates = vec![GateSpec::new("nand2", 2, 0x7, 1.0), GateSpec::new("inv", 1, 0x1, 1.0)];
+//! let db = OptimumDatabase::new("nand-inv", gates, ExactOptions::default());
+//! // AND is a NAND followed by an inverter: two cells.
 //! let and2 = db.implementation(0x8, 2).unwrap();
 //! assert_eq!(and2.cells, 2);
 //! ```
