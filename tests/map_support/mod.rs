@@ -59,7 +59,7 @@ fn library(name: &str, cells: Vec<Cell>, storage_area: f64, area_unit: &str) -> 
 /// The cells of ribbon3 (numbers as in libraries/ribbon3.json).
 pub fn ribbon3_cells(with_majority: bool) -> Vec<Cell> {
     let ab = &["a", "b"][..];
-    let abc = &["a", "b", "c"][..];
+    let pins3 = &["a", "b", "c"][..];
     let mut v = vec![
         cell("inv", &["a"], 0b01, 40.0, (1.0, 0.5), 1.0, 2),
         cell("buf", &["a"], 0b10, 44.0, (1.2, 0.5), 1.0, 2),
@@ -69,17 +69,17 @@ pub fn ribbon3_cells(with_majority: bool) -> Vec<Cell> {
         cell("nor2", ab, 0x1, 60.0, (1.6, 0.55), 1.0, 2),
         cell("xor2", ab, 0x6, 72.0, (1.9, 0.55), 1.1, 2),
         cell("xnor2", ab, 0x9, 72.0, (1.9, 0.55), 1.1, 2),
-        cell("and3", abc, 0x80, 84.0, (2.2, 0.6), 1.0, 2),
-        cell("nand3", abc, 0x7F, 84.0, (2.2, 0.6), 1.0, 2),
-        cell("or3", abc, 0xFE, 84.0, (2.2, 0.6), 1.0, 2),
-        cell("nor3", abc, 0x01, 84.0, (2.2, 0.6), 1.0, 2),
+        cell("and3", pins3, 0x80, 84.0, (2.2, 0.6), 1.0, 2),
+        cell("nand3", pins3, 0x7F, 84.0, (2.2, 0.6), 1.0, 2),
+        cell("or3", pins3, 0xFE, 84.0, (2.2, 0.6), 1.0, 2),
+        cell("nor3", pins3, 0x01, 84.0, (2.2, 0.6), 1.0, 2),
     ];
     if with_majority {
-        v.push(cell("maj3", abc, 0xE8, 110.0, (2.4, 0.6), 1.0, 2));
-        v.push(cell("minority3", abc, 0x17, 110.0, (2.4, 0.6), 1.0, 2));
+        v.push(cell("maj3", pins3, 0xE8, 110.0, (2.4, 0.6), 1.0, 2));
+        v.push(cell("minority3", pins3, 0x17, 110.0, (2.4, 0.6), 1.0, 2));
     }
-    v.push(cell("xor3", abc, 0x96, 120.0, (2.7, 0.65), 1.2, 2));
-    v.push(cell("xnor3", abc, 0x69, 120.0, (2.7, 0.65), 1.2, 2));
+    v.push(cell("xor3", pins3, 0x96, 120.0, (2.7, 0.65), 1.2, 2));
+    v.push(cell("xnor3", pins3, 0x69, 120.0, (2.7, 0.65), 1.2, 2));
     v
 }
 
