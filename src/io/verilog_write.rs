@@ -21,6 +21,7 @@ const KEYWORDS: &[&str] = &[
     "begin",
     "buf",
     "case",
+    "default",
     "else",
     "end",
     "endcase",

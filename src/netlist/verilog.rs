@@ -8,58 +8,9 @@
 //! cell named `dff` with pins `d`, `q`, `clk` when the library has none.
 
 use super::{Driver, MappedNetlist};
+use crate::io::verilog_identifier as identifier;
 use crate::library::Library;
 use std::fmt::Write;
-
-const KEYWORDS: &[&str] = &[
-    "always",
-    "and",
-    "assign",
-    "begin",
-    "buf",
-    "case",
-    "default",
-    "else",
-    "end",
-    "endcase",
-    "endmodule",
-    "for",
-    "function",
-    "if",
-    "initial",
-    "inout",
-    "input",
-    "integer",
-    "module",
-    "nand",
-    "nor",
-    "not",
-    "or",
-    "output",
-    "parameter",
-    "reg",
-    "supply0",
-    "supply1",
-    "wire",
-    "xnor",
-    "xor",
-];
-
-/// The name as a Verilog identifier, escaped when needed.
-pub fn identifier(name: &str) -> String {
-    let mut chars = name.chars();
-    let plain = match chars.next() {
-        Some(c) if c.is_ascii_alphabetic() || c == '_' => {
-            chars.all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '$')
-        }
-        _ => false,
-    };
-    if plain && !KEYWORDS.contains(&name) {
-        name.to_string()
-    } else {
-        format!("\\{name} ")
-    }
-}
 
 fn net_ref(nl: &MappedNetlist, net: u32) -> String {
     match nl.nets[net as usize].driver {
