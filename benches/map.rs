@@ -5,9 +5,10 @@
 //! allocator), then runs a criterion measurement of the whole mapping.
 
 use criterion::Criterion;
+use ribbonmap::generate::{generate, Family, Params};
 use ribbonmap::library::Library;
 use ribbonmap::mapper::{map_detailed, match_table, MapOptions};
-use ribbonmap::network::{Lit, Network};
+use ribbonmap::network::Network;
 use std::alloc::{GlobalAlloc, Layout, System};
 use std::sync::atomic::{AtomicUsize, Ordering};
 use std::time::Instant;
@@ -35,36 +36,11 @@ unsafe impl GlobalAlloc for Counting {
 #[global_allocator]
 static ALLOCATOR: Counting = Counting;
 
-fn multiplier(n: usize) -> Network {
-    let mut net = Network::new(format!("mult{n}"));
-    let a: Vec<Lit> = (0..n)
-        .map(|i| net.add_input(format!("a[{i}]")).unwrap())
-        .collect();
-    let b: Vec<Lit> = (0..n)
-        .map(|i| net.add_input(format!("b[{i}]")).unwrap())
-        .collect();
-    let mut acc: Vec<Lit> = (0..n).map(|j| net.and(a[j], b[0])).collect();
-    acc.push(Lit::FALSE);
-    let mut outputs = Vec::new();
-    for &b_i in &b[1..n] {
-        outputs.push(acc[0]);
-        let mut carry = Lit::FALSE;
-        let mut next = Vec::with_capacity(n + 1);
-        for j in 0..n {
-            let pp = net.and(a[j], b_i);
-            let x = acc[j + 1];
-            let t = net.xor(x, pp);
-            next.push(net.xor(t, carry));
-            carry = net.maj(x, pp, carry);
-        }
-        next.push(carry);
-        acc = next;
-    }
-    outputs.extend(acc.iter().copied());
-    for (i, &o) in outputs.iter().enumerate().take(2 * n) {
-        net.add_output(format!("p[{i}]"), o).unwrap();
-    }
-    net
+/// The bench network: the generators' array multiplier (about 100k nodes at
+/// width 160).
+fn multiplier(n: u32) -> Network {
+    generate(Family::Multiplier, &Params::new(n).with_style("array"))
+        .expect("array multiplier of a supported width")
 }
 
 fn main() {

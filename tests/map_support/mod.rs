@@ -165,34 +165,14 @@ pub fn parity_tree(n: usize) -> Network {
     net
 }
 
-/// An n x n array multiplier: partial products ANDed, rows summed with
-/// ripple full adders (xor chain + majority); outputs p[0..2n].
+/// An n x n array multiplier from the generators (partial products ANDed,
+/// rows summed with xor/majority full adders).
 pub fn array_multiplier(n: usize) -> Network {
-    let mut net = Network::new(format!("mult{n}"));
-    let (a, b) = operands(&mut net, n);
-    // acc[j] has weight (row + j); acc[n] is the top carry.
-    let mut acc: Vec<Lit> = (0..n).map(|j| net.and(a[j], b[0])).collect();
-    acc.push(Lit::FALSE);
-    let mut outputs = Vec::new();
-    for &b_i in &b[1..n] {
-        outputs.push(acc[0]);
-        let mut carry = Lit::FALSE;
-        let mut next = Vec::with_capacity(n + 1);
-        for j in 0..n {
-            let pp = net.and(a[j], b_i);
-            let x = acc[j + 1];
-            let t = net.xor(x, pp);
-            next.push(net.xor(t, carry));
-            carry = net.maj(x, pp, carry);
-        }
-        next.push(carry);
-        acc = next;
-    }
-    outputs.extend(acc.iter().copied());
-    for (i, &o) in outputs.iter().enumerate().take(2 * n) {
-        net.add_output(format!("p[{i}]"), o).unwrap();
-    }
-    net
+    ribbonmap::generate::generate(
+        ribbonmap::generate::Family::Multiplier,
+        &ribbonmap::generate::Params::new(n as u32).with_style("array"),
+    )
+    .expect("array multiplier of a supported width")
 }
 
 /// The value of bus `name[0..width]` in a 64-pattern simulation, per pattern.
