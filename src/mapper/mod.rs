@@ -114,7 +114,8 @@ pub struct MapOutcome {
     pub covered_nodes: usize,
     /// Cuts stored.
     pub cuts: usize,
-    /// Peak heap bytes of the cover state (cuts and per-node arrays).
+    /// Peak heap bytes of the cover state (the cut store at its largest and
+    /// the per-node arrays).
     pub cover_bytes: usize,
 }
 
@@ -249,7 +250,7 @@ pub fn map_detailed(
     cover.mark();
     let cover_bytes = cover.memory_bytes();
     let cuts = cover.cuts.len();
-    let netlist = cover.extract();
+    let netlist = cover.into_netlist();
     seconds.insert("cover".to_string(), t.elapsed().as_secs_f64());
     Ok(MapOutcome {
         netlist,
