@@ -84,6 +84,21 @@ fn multiplier(n: u32) -> Network {
         .expect("array multiplier of a supported width")
 }
 
+/// CPU seconds (user and system) this thread has used, from
+/// `/proc/thread-self/stat` (Linux; clock ticks of 1/100 s, the usual
+/// setting); `None` elsewhere. On a shared machine wall-clock time includes
+/// waiting for a core, CPU time does not.
+fn thread_cpu_seconds() -> Option<f64> {
+    let stat = std::fs::read_to_string("/proc/thread-self/stat").ok()?;
+    // Fields after the parenthesised command name; utime and stime are the
+    // 14th and 15th fields of the whole line.
+    let rest = &stat[stat.rfind(')')? + 2..];
+    let fields: Vec<&str> = rest.split_whitespace().collect();
+    let utime: f64 = fields.get(11)?.parse().ok()?;
+    let stime: f64 = fields.get(12)?.parse().ok()?;
+    Some((utime + stime) / 100.0)
+}
+
 fn median(mut v: Vec<f64>) -> f64 {
     v.sort_by(f64::total_cmp);
     v[v.len() / 2]
@@ -109,6 +124,7 @@ fn main() {
     let runs = 7;
     let mut phases: Vec<(String, Vec<f64>)> = Vec::new();
     let mut totals = Vec::new();
+    let cpu_before = thread_cpu_seconds();
     for _ in 0..runs {
         let t = Instant::now();
         let o = map_detailed(&net, &lib, &opts).expect("maps");
@@ -120,6 +136,9 @@ fn main() {
             phases[i].1.push(*s);
         }
     }
+    let cpu_per_run = cpu_before
+        .zip(thread_cpu_seconds())
+        .map(|(a, b)| (b - a) / runs as f64);
     println!(
         "network: {nodes} nodes ({} gates); covered after balancing: {}",
         net.gate_count(),
@@ -145,6 +164,13 @@ fn main() {
         outcome.netlist.instances.len(),
         outcome.cuts
     );
+    if let Some(cpu) = cpu_per_run {
+        println!(
+            "CPU time per mapping (mean of {runs}): {cpu:.4} s, {:.0} nodes per CPU-second \
+             (wall-clock exceeds it when the machine is shared)",
+            nodes as f64 / cpu.max(1e-9)
+        );
+    }
     println!(
         "peak heap of one mapping (balanced network, cuts, cover arrays, scratch and the \
          netlist being built; input network excluded): {peak} bytes, {:.1} bytes/node",

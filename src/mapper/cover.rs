@@ -62,6 +62,32 @@ pub struct Cover<'a> {
     fanout_estimate: Vec<f32>,
     inverter: u32,
     inverter_area: f32,
+    /// Per match-table implementation id: its index in `digests`, or `NONE`
+    /// before first use.
+    digest_of: Vec<u32>,
+    /// What the passes read of the implementations in use, packed.
+    digests: Vec<Digest>,
+    /// Leaf uses of the digests, in the implementations' order.
+    digest_uses: Vec<DigestUse>,
+}
+
+/// The part of an [`super::implementation::Implementation`] the passes
+/// read, kept densely so a cone walk does not chase the table's vectors.
+#[derive(Clone, Copy, Debug)]
+struct Digest {
+    area: f32,
+    root_per_load: f32,
+    first_use: u32,
+    uses: u32,
+}
+
+/// One leaf phase read by an implementation.
+#[derive(Clone, Copy, Debug)]
+struct DigestUse {
+    /// `2 * leaf position + complemented`.
+    code: u32,
+    /// Delay from the leaf to the output, load term excluded.
+    delay: f32,
 }
 
 /// The choice of one node phase and how often the current cover reads it.
@@ -71,6 +97,8 @@ struct PhaseState {
     choice: u32,
     /// References by the current cover (outputs and chosen matches).
     refs: u32,
+    /// For a match: the digest of its implementation.
+    digest: u32,
 }
 
 /// Arrival time and area flow of one node phase's choice.
@@ -83,6 +111,7 @@ struct PhaseCost {
 #[derive(Clone, Copy)]
 struct Pick {
     choice: u32,
+    digest: u32,
     arrival: f32,
     flow: f32,
 }
@@ -90,6 +119,7 @@ struct Pick {
 impl Pick {
     const EMPTY: Pick = Pick {
         choice: NONE,
+        digest: NONE,
         arrival: f32::INFINITY,
         flow: f32::INFINITY,
     };
@@ -157,7 +187,8 @@ impl<'a> Cover<'a> {
             phases: vec![
                 PhaseState {
                     choice: NONE,
-                    refs: 0
+                    refs: 0,
+                    digest: NONE,
                 };
                 2 * n
             ],
@@ -173,6 +204,9 @@ impl<'a> Cover<'a> {
             fanout_estimate,
             inverter,
             inverter_area: table.implementation(inverter).area as f32,
+            digest_of: vec![NONE; table.implementations.len()],
+            digests: Vec::new(),
+            digest_uses: Vec::new(),
         })
     }
 
@@ -218,14 +252,44 @@ impl<'a> Cover<'a> {
         }
     }
 
+    /// The digest of table implementation `id`, made on first use.
     #[inline]
-    fn evaluate(&self, node: usize, cut: usize, imp: u32) -> (f32, f32) {
+    fn digest(&mut self, id: u32) -> u32 {
+        let d = self.digest_of[id as usize];
+        if d != NONE {
+            return d;
+        }
+        let m = self.table.implementation(id);
+        let d = self.digests.len() as u32;
+        self.digests.push(Digest {
+            area: m.area as f32,
+            root_per_load: m.root_per_load,
+            first_use: self.digest_uses.len() as u32,
+            uses: m.leaf_uses.len() as u32,
+        });
+        self.digest_uses
+            .extend(m.leaf_uses.iter().map(|u| DigestUse {
+                code: 2 * u.var as u32 + u.complemented as u32,
+                delay: u.delay,
+            }));
+        self.digest_of[id as usize] = d;
+        d
+    }
+
+    #[inline]
+    fn uses_of(&self, digest: &Digest) -> &[DigestUse] {
+        &self.digest_uses[digest.first_use as usize..(digest.first_use + digest.uses) as usize]
+    }
+
+    /// Arrival and area flow of `node` implemented by digest `d` over `cut`.
+    #[inline]
+    fn evaluate(&self, node: usize, cut: usize, d: u32) -> (f32, f32) {
         let leaves = self.cuts.leaves(cut);
-        let m = self.table.implementation(imp);
+        let m = &self.digests[d as usize];
         let mut arrival = 0f32;
-        let mut flow = m.area as f32;
-        for u in &m.leaf_uses {
-            let idx = 2 * leaves[u.var as usize] as usize + u.complemented as usize;
+        let mut flow = m.area;
+        for u in self.uses_of(m) {
+            let idx = 2 * leaves[(u.code >> 1) as usize] as usize + (u.code & 1) as usize;
             arrival = arrival.max(self.cost[idx].arrival + u.delay);
             flow += self.cost[idx].flow;
         }
@@ -239,21 +303,19 @@ impl<'a> Cover<'a> {
     fn select(&mut self, node: usize, rank: Rank) -> Result<(), MapError> {
         let mut best = [Pick::EMPTY; 2];
         let req = [self.required[2 * node], self.required[2 * node + 1]];
+        let table = self.table;
         for cut in self.cuts.cuts(node) {
             let slot = self.cuts.slot(cut);
             if slot == NO_SLOT {
                 continue;
             }
             for (phase, best_phase) in best.iter_mut().enumerate() {
-                for (ci, &imp) in self
-                    .table
-                    .candidates(slot ^ phase as u32)
-                    .iter()
-                    .enumerate()
-                {
-                    let (arrival, flow) = self.evaluate(node, cut, imp);
+                for (ci, &imp) in table.candidates(slot ^ phase as u32).iter().enumerate() {
+                    let d = self.digest(imp);
+                    let (arrival, flow) = self.evaluate(node, cut, d);
                     let pick = Pick {
                         choice: ((cut as u32) << 2) | ci as u32,
+                        digest: d,
                         arrival,
                         flow,
                     };
@@ -272,6 +334,7 @@ impl<'a> Cover<'a> {
             }
             let alt = Pick {
                 choice: INVERT,
+                digest: NONE,
                 arrival: other.arrival + inv_delay,
                 flow: other.flow + inv_flow,
             };
@@ -289,6 +352,7 @@ impl<'a> Cover<'a> {
         }
         for (phase, pick) in best.iter().enumerate() {
             self.phases[2 * node + phase].choice = pick.choice;
+            self.phases[2 * node + phase].digest = pick.digest;
             self.cost[2 * node + phase].arrival = pick.arrival;
             self.cost[2 * node + phase].flow = pick.flow;
         }
@@ -361,12 +425,12 @@ impl<'a> Cover<'a> {
             NONE | FREE => {}
             INVERT => f(2 * node + (1 - phase), self.inverter_delay(node)),
             _ => {
-                let imp = self.table.implementation(self.implementation_of(c, phase));
+                let m = &self.digests[self.phases[2 * node + phase].digest as usize];
                 let leaves = self.cuts.leaves((c >> 2) as usize);
-                let tail = imp.root_per_load * self.load[node];
-                for u in &imp.leaf_uses {
+                let tail = m.root_per_load * self.load[node];
+                for u in self.uses_of(m) {
                     f(
-                        2 * leaves[u.var as usize] as usize + u.complemented as usize,
+                        2 * leaves[(u.code >> 1) as usize] as usize + (u.code & 1) as usize,
                         u.delay + tail,
                     );
                 }
@@ -434,15 +498,13 @@ impl<'a> Cover<'a> {
         }
     }
 
-    fn area_of(&self, phase: usize, choice: u32) -> f32 {
+    /// Area of a choice whose implementation (for a match) has digest `d`.
+    #[inline]
+    fn area_of(&self, choice: u32, d: u32) -> f32 {
         match choice {
             NONE | FREE => 0.0,
             INVERT => self.inverter_area,
-            c => {
-                self.table
-                    .implementation(self.implementation_of(c, phase))
-                    .area as f32
-            }
+            _ => self.digests[d as usize].area,
         }
     }
 
@@ -450,24 +512,22 @@ impl<'a> Cover<'a> {
     /// leaves it reads (written to `out`, count returned).
     #[inline]
     fn cone_step(&self, i: usize, out: &mut [u32; 12]) -> (f32, usize) {
-        let (node, phase) = (i / 2, i % 2);
-        match self.phases[i].choice {
+        let state = self.phases[i];
+        match state.choice {
             NONE | FREE => (0.0, 0),
             INVERT => {
                 out[0] = (i ^ 1) as u32;
                 (self.inverter_area, 1)
             }
             c => {
-                let (slot, leaves) = self.cuts.slot_and_leaves((c >> 2) as usize);
-                let id = self.table.candidates(slot ^ phase as u32)[(c & 3) as usize];
-                let imp = self.table.implementation(id);
+                let leaves = self.cuts.leaves((c >> 2) as usize);
+                let m = &self.digests[state.digest as usize];
                 let mut count = 0;
-                for u in &imp.leaf_uses {
-                    out[count] = 2 * leaves[u.var as usize] + u.complemented as u32;
+                for u in self.uses_of(m) {
+                    out[count] = 2 * leaves[(u.code >> 1) as usize] + (u.code & 1);
                     count += 1;
                 }
-                debug_assert!(node < self.net.num_nodes());
-                (imp.area as f32, count)
+                (m.area, count)
             }
         }
     }
@@ -550,12 +610,14 @@ impl<'a> Cover<'a> {
         area
     }
 
-    fn arrival_of(&self, node: usize, phase: usize, choice: u32) -> f32 {
-        self.cost_of(node, phase, choice).0
+    /// Arrival of the current choice of `node`'s `phase`.
+    fn current_arrival(&self, node: usize, phase: usize) -> f32 {
+        let state = self.phases[2 * node + phase];
+        self.cost_of(node, phase, state.choice, state.digest).0
     }
 
     /// Arrival and area flow of `choice` for `node`'s `phase`.
-    fn cost_of(&self, node: usize, phase: usize, choice: u32) -> (f32, f32) {
+    fn cost_of(&self, node: usize, phase: usize, choice: u32, d: u32) -> (f32, f32) {
         match choice {
             NONE => (f32::INFINITY, f32::INFINITY),
             FREE => (0.0, 0.0),
@@ -566,7 +628,7 @@ impl<'a> Cover<'a> {
                     self.cost[o].flow + self.inverter_area / self.fanout_estimate[node],
                 )
             }
-            c => self.evaluate(node, (c >> 2) as usize, self.implementation_of(c, phase)),
+            c => self.evaluate(node, (c >> 2) as usize, d),
         }
     }
 
@@ -575,7 +637,8 @@ impl<'a> Cover<'a> {
     pub fn exact_area_pass(&mut self) {
         let mut stack = Vec::new();
         let mut touched = Vec::new();
-        let mut options: Vec<(u32, f32, f32)> = Vec::new();
+        let mut options: Vec<(u32, u32, f32, f32)> = Vec::new();
+        let table = self.table;
         for id in self.net.node_ids() {
             let node = id.index();
             if !self.net.is_gate(id) {
@@ -604,6 +667,7 @@ impl<'a> Cover<'a> {
                     continue;
                 }
                 let current = self.phases[i].choice;
+                let current_digest = self.phases[i].digest;
                 let req = self.required[i];
                 options.clear();
                 let mut feasible_count = 0;
@@ -612,20 +676,22 @@ impl<'a> Cover<'a> {
                     if slot == NO_SLOT {
                         continue;
                     }
-                    for ci in 0..self.table.candidates(slot ^ phase as u32).len() {
+                    for (ci, &id) in table.candidates(slot ^ phase as u32).iter().enumerate() {
                         let opt = ((cut as u32) << 2) | ci as u32;
-                        let (arrival, flow) = self.cost_of(node, phase, opt);
+                        let d = self.digest(id);
+                        let (arrival, flow) = self.evaluate(node, cut, d);
                         feasible_count += (arrival <= req + EPS) as usize;
-                        options.push((opt, arrival, flow));
+                        options.push((opt, d, arrival, flow));
                     }
                 }
                 let other = self.phases[2 * node + 1 - phase].choice;
                 if other != INVERT && other != NONE {
-                    let (arrival, flow) = self.cost_of(node, phase, INVERT);
+                    let (arrival, flow) = self.cost_of(node, phase, INVERT, NONE);
                     feasible_count += (arrival <= req + EPS) as usize;
-                    options.push((INVERT, arrival, flow));
+                    options.push((INVERT, NONE, arrival, flow));
                 }
                 let mut best = current;
+                let mut best_digest = current_digest;
                 let mut best_area = f32::INFINITY;
                 let mut best_arrival = f32::INFINITY;
                 let mut best_flow = f32::INFINITY;
@@ -635,7 +701,7 @@ impl<'a> Cover<'a> {
                 if walk {
                     self.dereference(node, phase, &mut stack);
                 }
-                for &(opt, arrival, flow) in &options {
+                for &(opt, d, arrival, flow) in &options {
                     let feasible = arrival <= req + EPS;
                     let best_feasible = best_arrival <= req + EPS;
                     // Options that cannot win are not walked: an infeasible
@@ -646,6 +712,7 @@ impl<'a> Cover<'a> {
                     if !feasible {
                         if !best_feasible && arrival < best_arrival - EPS {
                             best = opt;
+                            best_digest = d;
                             best_area = f32::INFINITY;
                             best_arrival = arrival;
                             best_flow = flow;
@@ -654,14 +721,16 @@ impl<'a> Cover<'a> {
                     }
                     if !walk {
                         best = opt;
+                        best_digest = d;
                         best_arrival = arrival;
                         best_flow = flow;
                         continue;
                     }
-                    if best_feasible && self.area_of(phase, opt) > best_area + EPS {
+                    if best_feasible && self.area_of(opt, d) > best_area + EPS {
                         continue;
                     }
                     self.phases[i].choice = opt;
+                    self.phases[i].digest = d;
                     let area = self.reference_trial(node, phase, &mut stack, &mut touched);
                     for &t in &touched {
                         self.phases[t as usize].refs -= 1;
@@ -676,6 +745,7 @@ impl<'a> Cover<'a> {
                     };
                     if take {
                         best = opt;
+                        best_digest = d;
                         best_area = area;
                         best_arrival = arrival;
                         best_flow = flow;
@@ -683,10 +753,12 @@ impl<'a> Cover<'a> {
                 }
                 if walk {
                     self.phases[i].choice = best;
+                    self.phases[i].digest = best_digest;
                     self.reference(node, phase, &mut stack);
                 } else if best != current {
                     self.dereference(node, phase, &mut stack);
                     self.phases[i].choice = best;
+                    self.phases[i].digest = best_digest;
                     self.reference(node, phase, &mut stack);
                 }
                 self.cost[i].arrival = best_arrival;
@@ -696,7 +768,7 @@ impl<'a> Cover<'a> {
             for phase in 0..2 {
                 let i = 2 * node + phase;
                 if self.phases[i].refs == 0 || self.phases[i].choice == INVERT {
-                    self.cost[i].arrival = self.arrival_of(node, phase, self.phases[i].choice);
+                    self.cost[i].arrival = self.current_arrival(node, phase);
                 }
             }
         }
@@ -708,7 +780,8 @@ impl<'a> Cover<'a> {
         for node in 0..self.net.num_nodes() {
             for phase in 0..2 {
                 if self.phases[2 * node + phase].refs > 0 {
-                    area += self.area_of(phase, self.phases[2 * node + phase].choice) as f64;
+                    let state = self.phases[2 * node + phase];
+                    area += self.area_of(state.choice, state.digest) as f64;
                 }
             }
         }
