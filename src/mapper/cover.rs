@@ -19,6 +19,20 @@
 //! delay plus the allowed slack, or none for pure area), propagated backwards
 //! through the current cover. Everything iterates in index order and breaks
 //! ties by position, so the result is deterministic.
+//!
+//! Why the state is shaped as it is (mapping speed is memory traffic):
+//! - one record per node phase holds the choice, its reference count and the
+//!   digest of its implementation, so a cone walk touches one place per
+//!   phase; arrival and area flow sit side by side in a second array;
+//! - implementations in use are digested on first use (area, load term,
+//!   leaf uses packed as `2 * position + complemented`), so walks and cost
+//!   evaluation do not chase the match table's nested vectors;
+//! - the exact-area pass first computes every option's arrival and area
+//!   flow, walks no cone when at most one option meets the required time,
+//!   and otherwise walks only options that can still win (in time, and
+//!   whose own cells do not already cost more than the best cone so far).
+//!   These shortcuts skip only work whose outcome is known, so the choices
+//!   are exactly those of the plain pass.
 
 use super::cuts::{CutStore, Scratch};
 use super::implementation::Source;
@@ -35,6 +49,27 @@ const FREE: u32 = u32::MAX - 2;
 const EPS: f32 = 1e-4;
 /// Most node phases one trial of the exact-area pass walks.
 const TRIAL_LIMIT: usize = 24;
+
+/// Names for generated nets and instances that avoid the netlist's own
+/// port and storage names.
+struct FreshNames<'n> {
+    reserved: HashSet<&'n str>,
+    /// False when no reserved name has the shape of a generated one.
+    clash_possible: bool,
+}
+
+impl FreshNames<'_> {
+    /// `prefix` and `i`, with underscores appended while that is taken.
+    fn fresh(&self, prefix: &str, i: usize) -> String {
+        let mut name = format!("{prefix}{i}");
+        if self.clash_possible {
+            while self.reserved.contains(name.as_str()) {
+                name.push('_');
+            }
+        }
+        name
+    }
+}
 
 /// What a selection pass optimises.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -284,14 +319,35 @@ impl<'a> Cover<'a> {
     /// Arrival and area flow of `node` implemented by digest `d` over `cut`.
     #[inline]
     fn evaluate(&self, node: usize, cut: usize, d: u32) -> (f32, f32) {
-        let leaves = self.cuts.leaves(cut);
+        self.evaluate_with(node, &self.leaf_costs(cut), d)
+    }
+
+    /// The costs of both phases of every leaf of `cut`, indexed by
+    /// `2 * leaf position + complemented`, read once for all the
+    /// implementations tried on the cut.
+    #[inline]
+    fn leaf_costs(&self, cut: usize) -> [PhaseCost; 12] {
+        let mut out = [PhaseCost {
+            arrival: 0.0,
+            flow: 0.0,
+        }; 12];
+        for (v, &l) in self.cuts.leaves(cut).iter().enumerate() {
+            out[2 * v] = self.cost[2 * l as usize];
+            out[2 * v + 1] = self.cost[2 * l as usize + 1];
+        }
+        out
+    }
+
+    /// [`Cover::evaluate`] with the leaf costs already gathered.
+    #[inline]
+    fn evaluate_with(&self, node: usize, leaf_costs: &[PhaseCost; 12], d: u32) -> (f32, f32) {
         let m = &self.digests[d as usize];
         let mut arrival = 0f32;
         let mut flow = m.area;
         for u in self.uses_of(m) {
-            let idx = 2 * leaves[(u.code >> 1) as usize] as usize + (u.code & 1) as usize;
-            arrival = arrival.max(self.cost[idx].arrival + u.delay);
-            flow += self.cost[idx].flow;
+            let c = &leaf_costs[u.code as usize];
+            arrival = arrival.max(c.arrival + u.delay);
+            flow += c.flow;
         }
         (
             arrival + m.root_per_load * self.load[node],
@@ -309,10 +365,11 @@ impl<'a> Cover<'a> {
             if slot == NO_SLOT {
                 continue;
             }
+            let leaf_costs = self.leaf_costs(cut);
             for (phase, best_phase) in best.iter_mut().enumerate() {
                 for (ci, &imp) in table.candidates(slot ^ phase as u32).iter().enumerate() {
                     let d = self.digest(imp);
-                    let (arrival, flow) = self.evaluate(node, cut, d);
+                    let (arrival, flow) = self.evaluate_with(node, &leaf_costs, d);
                     let pick = Pick {
                         choice: ((cut as u32) << 2) | ci as u32,
                         digest: d,
@@ -676,10 +733,11 @@ impl<'a> Cover<'a> {
                     if slot == NO_SLOT {
                         continue;
                     }
+                    let leaf_costs = self.leaf_costs(cut);
                     for (ci, &id) in table.candidates(slot ^ phase as u32).iter().enumerate() {
                         let opt = ((cut as u32) << 2) | ci as u32;
                         let d = self.digest(id);
-                        let (arrival, flow) = self.evaluate(node, cut, d);
+                        let (arrival, flow) = self.evaluate_with(node, &leaf_costs, d);
                         feasible_count += (arrival <= req + EPS) as usize;
                         options.push((opt, d, arrival, flow));
                     }
@@ -833,14 +891,9 @@ impl<'a> Cover<'a> {
                 && (core.starts_with('n') || core.starts_with('g'))
                 && core[1..].bytes().all(|b| b.is_ascii_digit())
         });
-        let fresh = |prefix: &str, i: usize| {
-            let mut name = format!("{prefix}{i}");
-            if clash_possible {
-                while reserved.contains(name.as_str()) {
-                    name.push('_');
-                }
-            }
-            name
+        let names = FreshNames {
+            reserved,
+            clash_possible,
         };
         // Exact capacities: the netlist is the largest thing alive at the
         // end of mapping, and growth by doubling would leave up to half of
@@ -921,8 +974,7 @@ impl<'a> Cover<'a> {
                             &[src],
                             &mut local,
                             &mut constant,
-                            &fresh,
-                            clash_possible,
+                            &names,
                         );
                     }
                     c => {
@@ -939,8 +991,7 @@ impl<'a> Cover<'a> {
                             &leaf_nets,
                             &mut local,
                             &mut constant,
-                            &fresh,
-                            clash_possible,
+                            &names,
                         );
                     }
                 }
@@ -991,8 +1042,7 @@ impl<'a> Cover<'a> {
         leaf_nets: &[NetId],
         local: &mut Vec<NetId>,
         constant: &mut impl FnMut(&mut MappedNetlist, bool) -> NetId,
-        fresh: &impl Fn(&str, usize) -> String,
-        clash_possible: bool,
+        names: &FreshNames,
     ) -> NetId {
         let m = self.table.implementation(imp);
         local.clear();
@@ -1008,11 +1058,11 @@ impl<'a> Cover<'a> {
                     Source::Constant(c) => constant(out, c),
                 })
                 .collect();
-            let name = fresh("n", out.nets.len());
+            let name = names.fresh("n", out.nets.len());
             let n = out.add_instance(gate.cell, inputs, name);
-            if clash_possible {
+            if names.clash_possible {
                 let idx = out.instances.len() - 1;
-                out.instances[idx].name = fresh("g", idx);
+                out.instances[idx].name = names.fresh("g", idx);
             }
             local.push(n);
         }
