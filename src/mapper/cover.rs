@@ -419,6 +419,28 @@ impl<'a> Cover<'a> {
     /// Pass 1: enumerates priority cuts node by node and maps each node for
     /// `rank` (delay, or area flow for the area goal).
     pub fn enumerate_and_map(&mut self, cut_limit: usize, rank: Rank) -> Result<(), MapError> {
+        self.enumerate_keeping_truths(cut_limit, rank)?;
+        self.cuts.release_truths();
+        Ok(())
+    }
+
+    /// [`Cover::enumerate_and_map`], returning the function and leaf count
+    /// of every stored cut (for the optimum database) before the truth
+    /// tables are freed.
+    pub fn enumerate_and_collect(
+        &mut self,
+        cut_limit: usize,
+        rank: Rank,
+    ) -> Result<Vec<(u64, usize)>, MapError> {
+        self.enumerate_keeping_truths(cut_limit, rank)?;
+        let functions = (0..self.cuts.len())
+            .map(|c| (self.cuts.truth(c), self.cuts.leaves(c).len()))
+            .collect();
+        self.cuts.release_truths();
+        Ok(functions)
+    }
+
+    fn enumerate_keeping_truths(&mut self, cut_limit: usize, rank: Rank) -> Result<(), MapError> {
         let mut scratch = Scratch::default();
         let net = self.net;
         for id in net.node_ids() {
@@ -446,7 +468,6 @@ impl<'a> Cover<'a> {
                 self.map_source(node);
             }
         }
-        self.cuts.release_truths();
         Ok(())
     }
 
@@ -753,6 +774,7 @@ impl<'a> Cover<'a> {
                 let mut best_area = f32::INFINITY;
                 let mut best_arrival = f32::INFINITY;
                 let mut best_flow = f32::INFINITY;
+                let mut best_gates = usize::MAX;
                 // With at most one option in time the choice needs no
                 // areas: the one in time, or else the earliest.
                 let walk = feasible_count > 1;
@@ -793,13 +815,28 @@ impl<'a> Cover<'a> {
                     for &t in &touched {
                         self.phases[t as usize].refs -= 1;
                     }
+                    // Ties in area and flow go to the implementation with
+                    // fewer cells of its own: the same area then comes from
+                    // shared nodes, which later fanouts can reuse for free
+                    // (a cell folded into a supergate cannot be shared).
+                    let gates = match opt {
+                        INVERT => 1,
+                        _ => self
+                            .table
+                            .implementation(self.implementation_of(opt, phase))
+                            .gates
+                            .len(),
+                    };
                     let take = if !best_feasible {
                         true
                     } else {
                         area < best_area - EPS
                             || (area <= best_area + EPS
                                 && (flow < best_flow - EPS
-                                    || (flow <= best_flow + EPS && arrival < best_arrival - EPS)))
+                                    || (flow <= best_flow + EPS
+                                        && (gates < best_gates
+                                            || (gates == best_gates
+                                                && arrival < best_arrival - EPS)))))
                     };
                     if take {
                         best = opt;
@@ -807,6 +844,7 @@ impl<'a> Cover<'a> {
                         best_area = area;
                         best_arrival = arrival;
                         best_flow = flow;
+                        best_gates = gates;
                     }
                 }
                 if walk {

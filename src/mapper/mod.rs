@@ -240,10 +240,7 @@ pub fn map_detailed(
     let table: &MatchTable = if opts.optimum {
         let t = Instant::now();
         let mut probe = Cover::new(subject, lib, &table, opts.cut_size)?;
-        probe.enumerate_and_map(opts.cuts_per_node, first)?;
-        let functions: Vec<(u64, usize)> = (0..probe.cuts.len())
-            .map(|c| (probe.cuts.truth(c), probe.cuts.leaves(c).len()))
-            .collect();
+        let functions = probe.enumerate_and_collect(opts.cuts_per_node, first)?;
         drop(probe);
         augmented = optimum::augmented_table(&table, lib, functions).0;
         seconds.insert("optimum".to_string(), t.elapsed().as_secs_f64());
