@@ -17,8 +17,9 @@
 //! [`WindowProver::prove`] collects a *window*: the nodes of the union of
 //! the two cones, taken from the top in decreasing index order (the network
 //! is topologically indexed, so a node is taken only after every window node
-//! that reads it), until [`EquivOptions::window_nodes`](super::EquivOptions)
-//! gates are in. The fanins left outside are *frontier* nodes and become
+//! that reads it), until it holds [`FIRST_WINDOW_GATES`] gates; a second
+//! try, only when that window was cut short and did not prove the pair,
+//! allows [`EquivOptions::window_gates`](super::EquivOptions). The fanins left outside are *frontier* nodes and become
 //! free variables. A fresh small solver receives the window's Tseitin
 //! clauses and the two clauses of `x != y`:
 //!
@@ -29,8 +30,8 @@
 //!   real input patterns. A window answer never becomes a counterexample.
 //!
 //! Ordering by index makes shared nodes enter the window once, below both
-//! sides, which is exactly the meeting point a local proof needs. A window
-//! query also has a small work limit (the same proof-log meter as the
+//! sides, which is exactly the meeting point a local proof needs. The large
+//! window also has a small work limit (the same proof-log meter as the
 //! oracle): a local proof that needs many conflicts is better left to the
 //! global solver.
 
@@ -42,10 +43,10 @@ use std::time::Instant;
 use varisat::{ExtendFormula, Lit as SatLit, Solver, Var};
 
 use super::oracle::{gate_clauses, WorkMeter, BYTES_PER_CONFLICT};
-use crate::network::{Lit, Network, NodeId};
+use crate::network::{Lit, Network, NodeId, NodeKind};
 
-/// Conflicts a window query may use before it gives up (common practice:
-/// local proofs either succeed almost at once or are not local).
+/// Conflicts a large window query may use before it gives up (a choice
+/// made here: local proofs either succeed almost at once or are not local).
 const WINDOW_CONFLICTS: u64 = 2_000;
 
 /// Gates of the first, small window tried on every pair. Most pairs of a
@@ -54,6 +55,22 @@ const WINDOW_CONFLICTS: u64 = 2_000;
 /// (whose proof log would double its cost): with at most this many gates
 /// the formula is tiny, whatever the search does.
 pub(crate) const FIRST_WINDOW_GATES: usize = 24;
+
+/// Windows with at most this many free frontier nodes are decided by
+/// simulating every frontier value (at most 64 words a node) rather than by
+/// a solver, which costs far more to set up.
+const ENUMERATE_FRONTIER_UP_TO: usize = 12;
+
+/// Truth-table words of the first six variables (bit `p` of word `k` is bit
+/// `k` of `p`).
+const TRUTH_TABLE_WORDS: [u64; 6] = [
+    0xAAAA_AAAA_AAAA_AAAA,
+    0xCCCC_CCCC_CCCC_CCCC,
+    0xF0F0_F0F0_F0F0_F0F0,
+    0xFF00_FF00_FF00_FF00,
+    0xFFFF_0000_FFFF_0000,
+    0xFFFF_FFFF_0000_0000,
+];
 
 /// Outcome of one window query.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -70,9 +87,13 @@ pub(crate) enum WindowAnswer {
 pub struct WindowStats {
     /// Window queries made.
     pub queries: u64,
+    /// Queries decided by simulating every frontier value instead of by a
+    /// solver.
+    pub enumerated: u64,
     /// Queries that proved their pair.
     pub proven: u64,
-    /// Queries satisfiable on the free frontier (inconclusive).
+    /// Queries satisfiable (or, enumerated, unequal) on the free frontier
+    /// (inconclusive).
     pub satisfiable: u64,
     /// Queries stopped by the window work limit (inconclusive).
     pub stopped: u64,
@@ -86,6 +107,9 @@ pub struct WindowStats {
 pub(crate) struct WindowProver {
     /// Gates at most in one window; 0 turns window proofs off.
     max_gates: usize,
+    /// Windows with at most this many free frontier nodes are enumerated
+    /// ([`ENUMERATE_FRONTIER_UP_TO`]; tests lower it to exercise the solver).
+    pub enumerate_up_to: usize,
     /// Solver variable of each node plus one while it is in the current
     /// window (0 = not in it); reset after every query.
     var_of: Vec<u32>,
@@ -94,6 +118,11 @@ pub(crate) struct WindowProver {
     /// Gates of the current window.
     gates: Vec<NodeId>,
     heap: BinaryHeap<NodeId>,
+    /// Whether the node with each variable is a gate of the window (not
+    /// a frontier node), by variable.
+    in_window: Vec<bool>,
+    /// Simulation words of the window's nodes, by variable (enumeration).
+    values: Vec<u64>,
     /// Work counters.
     pub stats: WindowStats,
     /// Seconds spent in window queries.
@@ -106,10 +135,13 @@ impl WindowProver {
     pub fn new(max_gates: usize) -> WindowProver {
         WindowProver {
             max_gates,
+            enumerate_up_to: ENUMERATE_FRONTIER_UP_TO,
             var_of: Vec::new(),
             touched: Vec::new(),
             gates: Vec::new(),
             heap: BinaryHeap::new(),
+            in_window: Vec::new(),
+            values: Vec::new(),
             stats: WindowStats::default(),
             seconds: 0.0,
         }
@@ -148,7 +180,12 @@ impl WindowProver {
     ) -> (WindowAnswer, bool) {
         self.stats.queries += 1;
         let cut_short = self.collect(network, x, y, max_gates);
-        let answer = self.solve_window(network, x, y, max_gates > FIRST_WINDOW_GATES);
+        let free = self.touched.len() - self.gates.len() - usize::from(self.var_of[0] != 0);
+        let answer = if free <= self.enumerate_up_to.min(ENUMERATE_FRONTIER_UP_TO) {
+            self.enumerate_window(network, x, y, free)
+        } else {
+            self.solve_window(network, x, y, max_gates > FIRST_WINDOW_GATES)
+        };
         for &node in &self.touched {
             self.var_of[node.index()] = 0;
         }
@@ -156,10 +193,79 @@ impl WindowProver {
         (answer, cut_short)
     }
 
+    /// Decides the collected window by simulating it on every value of its
+    /// `free` frontier nodes (at most [`ENUMERATE_FRONTIER_UP_TO`]): the
+    /// same answer a solver would give, without building one.
+    fn enumerate_window(&mut self, network: &Network, x: Lit, y: Lit, free: usize) -> WindowAnswer {
+        self.stats.enumerated += 1;
+        // Frontier node k takes the k-th truth-table pattern: bit p of word
+        // w is bit k of the assignment number 64 w + p (with fewer than six
+        // free nodes one word repeats every assignment).
+        let words = 1usize << free.saturating_sub(6);
+        let slots = self.touched.len();
+        self.values.clear();
+        self.values.resize(slots * words, 0);
+        let mut k = 0;
+        for slot in 0..slots {
+            let node = self.touched[slot];
+            if self.in_window[slot] || network.kind(node) == NodeKind::Const {
+                continue; // a window gate (computed below) or the constant 0
+            }
+            for w in 0..words {
+                self.values[slot * words + w] = if k < 6 {
+                    TRUTH_TABLE_WORDS[k]
+                } else if (w >> (k - 6)) & 1 == 1 {
+                    u64::MAX
+                } else {
+                    0
+                };
+            }
+            k += 1;
+        }
+        debug_assert_eq!(k, free);
+        let word = |values: &[u64], var_of: &[u32], lit: Lit, w: usize| {
+            let slot = var_of[lit.node().index()] as usize - 1;
+            let v = values[slot * words + w];
+            if lit.is_complemented() {
+                !v
+            } else {
+                v
+            }
+        };
+        // Gates were collected in decreasing index order: evaluate upwards.
+        for &gate in self.gates.iter().rev() {
+            let slot = self.var_of[gate.index()] as usize - 1;
+            let f = network.fanins(gate);
+            for w in 0..words {
+                let a = word(&self.values, &self.var_of, f[0], w);
+                let b = word(&self.values, &self.var_of, f[1], w);
+                self.values[slot * words + w] = match network.kind(gate) {
+                    NodeKind::And => a & b,
+                    NodeKind::Xor => a ^ b,
+                    _ => {
+                        let c = word(&self.values, &self.var_of, f[2], w);
+                        (a & b) | (a & c) | (b & c)
+                    }
+                };
+            }
+        }
+        let equal = (0..words).all(|w| {
+            word(&self.values, &self.var_of, x, w) == word(&self.values, &self.var_of, y, w)
+        });
+        if equal {
+            self.stats.proven += 1;
+            WindowAnswer::Proven
+        } else {
+            self.stats.satisfiable += 1;
+            WindowAnswer::Inconclusive
+        }
+    }
+
     /// Gives `node` the next variable (variables are numbered from 1 in
     /// the order nodes are met).
     fn assign(&mut self, node: NodeId) {
         self.touched.push(node);
+        self.in_window.push(false);
         self.var_of[node.index()] = self.touched.len() as u32;
     }
 
@@ -180,6 +286,7 @@ impl WindowProver {
         // fanouts, so the window is the top of the union of both cones.
         self.gates.clear();
         self.heap.clear();
+        self.in_window.clear();
         let mut cut_short = false;
         for root in [x.node(), y.node()] {
             if self.var_of[root.index()] == 0 {
@@ -196,6 +303,7 @@ impl WindowProver {
                 continue; // a frontier gate
             }
             self.gates.push(node);
+            self.in_window[self.var_of[node.index()] as usize - 1] = true;
             for &f in network.fanins(node) {
                 if self.var_of[f.node().index()] == 0 {
                     self.assign(f.node());
@@ -272,7 +380,7 @@ impl WindowProver {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::network::{lit_word, NodeKind, SplitMix64};
+    use crate::network::{lit_word, SplitMix64};
     use proptest::prelude::*;
 
     /// Truth-table input words of `n` ≤ 6 inputs: one 64-bit word holds
@@ -380,15 +488,23 @@ mod tests {
             let (words, mask) = exhaustive_words(inputs);
             let values = net.simulate(&words);
             let equal = |x: Lit, y: Lit| (lit_word(&values, x) ^ lit_word(&values, y)) & mask == 0;
-            let mut small = WindowProver::new(max_gates);
-            let mut whole = WindowProver::new(net.num_nodes());
-            for &(x, y) in &pairs {
-                let truth = equal(x, y);
-                if small.prove(&net, x, y) == WindowAnswer::Proven {
-                    prop_assert!(truth, "window of {} proved {:?} == {:?}", max_gates, x, y);
+            // Each size both ways: frontier enumeration, and the solver alone.
+            for enumerate_up_to in [ENUMERATE_FRONTIER_UP_TO, 0] {
+                let mut small = WindowProver::new(max_gates);
+                let mut whole = WindowProver::new(net.num_nodes());
+                small.enumerate_up_to = enumerate_up_to;
+                whole.enumerate_up_to = enumerate_up_to;
+                for &(x, y) in &pairs {
+                    let truth = equal(x, y);
+                    if small.prove(&net, x, y) == WindowAnswer::Proven {
+                        prop_assert!(truth, "window of {} proved {:?} == {:?}", max_gates, x, y);
+                    }
+                    let answer = whole.prove(&net, x, y);
+                    prop_assert_eq!(answer == WindowAnswer::Proven, truth, "{:?} == {:?}", x, y);
                 }
-                let answer = whole.prove(&net, x, y);
-                prop_assert_eq!(answer == WindowAnswer::Proven, truth, "{:?} == {:?}", x, y);
+                if enumerate_up_to == 0 {
+                    prop_assert_eq!(small.stats.enumerated + whole.stats.enumerated, 0);
+                }
             }
         }
     }
