@@ -29,6 +29,12 @@
 //!   the caller falls back to the global oracle, whose counterexamples are
 //!   real input patterns. A window answer never becomes a counterexample.
 //!
+//! Windows with at most [`ENUMERATE_FRONTIER_UP_TO`] free frontier nodes
+//! skip the solver: simulating the window on every frontier value (truth
+//! tables of at most 64 words) gives the same answer, and setting up a
+//! solver costs far more than such a proof (on c6288 solver-only windows
+//! were slower than the global solver; enumerated ones are faster).
+//!
 //! Ordering by index makes shared nodes enter the window once, below both
 //! sides, which is exactly the meeting point a local proof needs. The large
 //! window also has a small work limit (the same proof-log meter as the
@@ -52,8 +58,8 @@ const WINDOW_CONFLICTS: u64 = 2_000;
 /// Gates of the first, small window tried on every pair. Most pairs of a
 /// swept miter meet again within a few gates; a query this small costs
 /// about as much as starting the solver. It runs without the work meter
-/// (whose proof log would double its cost): with at most this many gates
-/// the formula is tiny, whatever the search does.
+/// (writing the proof log costs time, and a formula of at most this many
+/// gates cannot need a long search).
 pub(crate) const FIRST_WINDOW_GATES: usize = 24;
 
 /// Windows with at most this many free frontier nodes are decided by
