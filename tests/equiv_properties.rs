@@ -163,3 +163,52 @@ fn few_simulation_words_still_give_right_answers() {
         );
     }
 }
+
+/// Tiny windows cannot prove much, so their satisfiable (inconclusive)
+/// answers are frequent: each must fall back to the global solver, never
+/// turn into a `different` verdict. Equivalent pairs stay proven, different
+/// pairs get a counterexample that really separates them (exhaustive
+/// simulation and replay on the two networks as the outside checks).
+#[test]
+fn inconclusive_windows_fall_back_to_the_global_solver() {
+    use ribbonmap::equiv::check_with_stats;
+    let mut rng = SplitMix64::new(11);
+    let (mut window_sat, mut global_proofs) = (0, 0);
+    for round in 0..80 {
+        let a = random_network(&mut rng, 10, 50, 3);
+        let b = if round % 2 == 0 {
+            rewrite(&a, &mut rng)
+        } else {
+            random_network(&mut rng, 10, 50, 3)
+        };
+        let opts = EquivOptions {
+            sim_words: 1,
+            enumerate_up_to: 0,
+            window_gates: 1 + round % 4,
+            ..EquivOptions::default()
+        };
+        let report = check_with_stats(&a, &b, &opts).unwrap();
+        window_sat += report.stats.window.satisfiable;
+        global_proofs += report.stats.sweep.merged_by_sat;
+        let truth = exhaustively_equal(&a, &b);
+        match report.verdict {
+            Verdict::Equivalent { .. } => assert!(truth, "round {round}: wrongly equivalent"),
+            Verdict::Different { counterexample, .. } => {
+                assert!(!truth, "round {round}: wrongly different");
+                let pattern: Vec<bool> = a
+                    .inputs()
+                    .keys()
+                    .map(|n| counterexample.inputs[n.as_str()])
+                    .collect();
+                let (oa, ob) = (eval(&a, &pattern), eval(&b, &pattern));
+                assert_ne!(oa, ob, "round {round}: counterexample does not separate");
+            }
+            Verdict::Undecided { outputs, .. } => panic!("round {round}: undecided {outputs:?}"),
+        }
+    }
+    assert!(
+        window_sat > 0,
+        "no window was inconclusive: the fallback went untested"
+    );
+    assert!(global_proofs > 0, "no pair was left to the global solver");
+}

@@ -22,13 +22,17 @@
 //!    once.
 //!    Miters with few inputs (16 by default) are instead proven by enumerating every
 //!    input pattern ([`exhaustive`]), a complete proof.
-//! 4. [`sweep`] proves candidate pairs bottom-up with the incremental SAT
-//!    [`oracle`] (varisat, lazily Tseitin-encoded cones, assumptions, a work
-//!    limit), merging what it proves and refining the classes with every
-//!    counterexample.
-//! 5. The output pairs are then proven on the reduced network; a
-//!    satisfiable query gives the counterexample, [`replay`] checks it on the
-//!    original networks and lists the outputs it separates.
+//! 4. [`sweep`] proves candidate pairs bottom-up, merging what it proves and
+//!    refining the classes with every counterexample. Each pair is first
+//!    tried on a small [`window`] of logic below it (a fresh solver, the
+//!    window's frontier left free: UNSAT is a proof, SAT proves nothing);
+//!    what the window cannot prove goes to the incremental SAT [`oracle`]
+//!    (one varisat solver, lazily Tseitin-encoded cones, assumptions, a work
+//!    limit), whose counterexamples are real input patterns.
+//! 5. The output pairs are then proven on the reduced network the same way
+//!    (window first, then the oracle); a satisfiable oracle query gives the
+//!    counterexample, [`replay`] checks it on the original networks and
+//!    lists the outputs it separates.
 //!
 //! # Example
 //!
@@ -59,10 +63,12 @@ mod oracle;
 mod ports;
 mod replay;
 mod sweep;
+mod window;
 
 pub use oracle::OracleStats;
 pub use ports::parse_port_map;
 pub use sweep::SweepStats;
+pub use window::WindowStats;
 
 use indexmap::IndexMap;
 use std::time::Instant;
@@ -71,6 +77,7 @@ use crate::network::{lit_word, Network};
 use classes::Classes;
 use miter::Miter;
 use oracle::{Answer, Oracle};
+use window::{WindowAnswer, WindowProver};
 
 /// How the ports of the two networks are paired.
 #[derive(Clone, Debug, Default, PartialEq, Eq)]
@@ -104,6 +111,10 @@ pub struct EquivOptions {
     /// Miters with at most this many inputs are proven by enumerating every
     /// input pattern instead of by SAT (0 turns enumeration off).
     pub enumerate_up_to: usize,
+    /// Gates at most in the window of a local proof, tried on every
+    /// candidate pair before the global solver (0 turns window proofs off).
+    /// See the `window` module.
+    pub window_gates: usize,
 }
 
 impl Default for EquivOptions {
@@ -115,6 +126,7 @@ impl Default for EquivOptions {
             seed: 0x5EED_F00D,
             sweep: true,
             enumerate_up_to: 16,
+            window_gates: 200,
         }
     }
 }
@@ -210,6 +222,8 @@ pub struct EquivStats {
     pub initial_classes: usize,
     /// Sweep counters.
     pub sweep: SweepStats,
+    /// Window (local proof) counters.
+    pub window: WindowStats,
     /// SAT oracle counters.
     pub oracle: OracleStats,
     /// Seconds building the miter.
@@ -218,6 +232,9 @@ pub struct EquivStats {
     pub simulation_seconds: f64,
     /// Seconds sweeping internal nodes.
     pub sweep_seconds: f64,
+    /// Seconds in window proofs, sweep and outputs together (part of
+    /// `sweep_seconds` plus `output_seconds`).
+    pub window_seconds: f64,
     /// Seconds proving the outputs.
     pub output_seconds: f64,
 }
@@ -297,12 +314,25 @@ pub fn check_with_stats(
     }
 
     let mut oracle = Oracle::new(opts.conflict_limit);
+    let mut window = WindowProver::new(opts.window_gates);
     let started = Instant::now();
     let swept = if opts.sweep {
-        sweep::sweep(&miter.network, &mut classes, &mut oracle, &mut stats.sweep)
+        sweep::sweep(
+            &miter.network,
+            &mut classes,
+            &mut window,
+            &mut oracle,
+            &mut stats.sweep,
+        )
     } else {
         let mut none = Classes::none(miter.network.num_nodes());
-        sweep::sweep(&miter.network, &mut none, &mut oracle, &mut stats.sweep)
+        sweep::sweep(
+            &miter.network,
+            &mut none,
+            &mut window,
+            &mut oracle,
+            &mut stats.sweep,
+        )
     };
     stats.reduced_nodes = swept.reduced.num_nodes();
     stats.sweep_seconds = started.elapsed().as_secs_f64();
@@ -312,6 +342,9 @@ pub fn check_with_stats(
     let mut verdict = None;
     for pair in &miter.pairs {
         let (x, y) = (swept.lit(pair.a), swept.lit(pair.b));
+        if window.prove(&swept.reduced, x, y) == WindowAnswer::Proven {
+            continue;
+        }
         match oracle.equal(&swept.reduced, x, y) {
             Answer::Equal => {}
             Answer::Unknown => undecided.push(pair.name.clone()),
@@ -327,6 +360,8 @@ pub fn check_with_stats(
     }
     stats.output_seconds = started.elapsed().as_secs_f64();
     stats.oracle = oracle.stats;
+    stats.window = window.stats;
+    stats.window_seconds = window.seconds;
     let verdict = verdict.unwrap_or(if undecided.is_empty() {
         Verdict::Equivalent { outputs_checked }
     } else {

@@ -35,9 +35,52 @@ use crate::network::{Lit, Network, NodeId, NodeKind};
 pub(crate) const BYTES_PER_CONFLICT: u64 = 96;
 
 /// An `io::Write` sink that counts bytes and fails past a limit.
-struct WorkMeter {
+pub(crate) struct WorkMeter {
     spent: Rc<Cell<u64>>,
     limit: Rc<Cell<u64>>,
+}
+
+impl WorkMeter {
+    /// A meter adding to `spent` that fails once it exceeds `limit`.
+    pub fn new(spent: Rc<Cell<u64>>, limit: Rc<Cell<u64>>) -> WorkMeter {
+        WorkMeter { spent, limit }
+    }
+}
+
+/// Emits the Tseitin clauses of a gate of `kind` with output `out` and
+/// fanins `fanins` (nothing for inputs; the constant needs `out` false).
+pub(crate) fn gate_clauses(
+    kind: NodeKind,
+    out: SatLit,
+    fanins: &[SatLit],
+    mut emit: impl FnMut(&[SatLit]),
+) {
+    match kind {
+        NodeKind::Const => emit(&[!out]),
+        NodeKind::Input => {}
+        NodeKind::And => {
+            let (a, b) = (fanins[0], fanins[1]);
+            emit(&[!out, a]);
+            emit(&[!out, b]);
+            emit(&[out, !a, !b]);
+        }
+        NodeKind::Xor => {
+            let (a, b) = (fanins[0], fanins[1]);
+            emit(&[!out, a, b]);
+            emit(&[!out, !a, !b]);
+            emit(&[out, !a, b]);
+            emit(&[out, a, !b]);
+        }
+        NodeKind::Maj => {
+            let (a, b, c) = (fanins[0], fanins[1], fanins[2]);
+            emit(&[!out, a, b]);
+            emit(&[!out, a, c]);
+            emit(&[!out, b, c]);
+            emit(&[out, !a, !b]);
+            emit(&[out, !a, !c]);
+            emit(&[out, !b, !c]);
+        }
+    }
 }
 
 impl io::Write for WorkMeter {
@@ -187,35 +230,13 @@ impl Oracle {
             self.var_of[node.index()] = self.next_var;
             self.stats.encoded_nodes += 1;
             let out = SatLit::positive(Var::from_index(self.next_var as usize - 1));
-            match network.kind(node) {
-                NodeKind::Const => self.add_clause(&[!out]),
-                NodeKind::Input => {}
-                NodeKind::And => {
-                    let f = network.fanins(node);
-                    let (a, b) = (self.sat_lit(f[0]), self.sat_lit(f[1]));
-                    self.add_clause(&[!out, a]);
-                    self.add_clause(&[!out, b]);
-                    self.add_clause(&[out, !a, !b]);
-                }
-                NodeKind::Xor => {
-                    let f = network.fanins(node);
-                    let (a, b) = (self.sat_lit(f[0]), self.sat_lit(f[1]));
-                    self.add_clause(&[!out, a, b]);
-                    self.add_clause(&[!out, !a, !b]);
-                    self.add_clause(&[out, !a, b]);
-                    self.add_clause(&[out, a, !b]);
-                }
-                NodeKind::Maj => {
-                    let f = network.fanins(node);
-                    let (a, b, c) = (self.sat_lit(f[0]), self.sat_lit(f[1]), self.sat_lit(f[2]));
-                    self.add_clause(&[!out, a, b]);
-                    self.add_clause(&[!out, a, c]);
-                    self.add_clause(&[!out, b, c]);
-                    self.add_clause(&[out, !a, !b]);
-                    self.add_clause(&[out, !a, !c]);
-                    self.add_clause(&[out, !b, !c]);
-                }
+            let f = network.fanins(node);
+            let mut fanins = [out; 3];
+            for (slot, &lit) in fanins.iter_mut().zip(f) {
+                *slot = self.sat_lit(lit);
             }
+            let kind = network.kind(node);
+            gate_clauses(kind, out, &fanins[..f.len()], |c| self.add_clause(c));
         }
         self.cone = cone;
     }

@@ -21,6 +21,7 @@
 
 use super::classes::Classes;
 use super::oracle::{Answer, Oracle};
+use super::window::{WindowAnswer, WindowProver};
 use crate::network::{Lit, Network, NodeId, NodeKind};
 
 /// Counters of one sweep.
@@ -28,7 +29,9 @@ use crate::network::{Lit, Network, NodeId, NodeKind};
 pub struct SweepStats {
     /// Candidate pairs found identical by structural hashing alone.
     pub merged_by_hashing: u64,
-    /// Candidate pairs proven by the SAT solver.
+    /// Candidate pairs proven by a window query (a small local solver).
+    pub merged_by_window: u64,
+    /// Candidate pairs proven by the global SAT solver.
     pub merged_by_sat: u64,
     /// Candidate pairs refuted by a counterexample.
     pub refuted: u64,
@@ -95,6 +98,7 @@ impl Swept {
 pub(crate) fn sweep(
     miter: &Network,
     classes: &mut Classes,
+    window: &mut WindowProver,
     oracle: &mut Oracle,
     stats: &mut SweepStats,
 ) -> Swept {
@@ -126,6 +130,11 @@ pub(crate) fn sweep(
             let target = image[rep.index()].xor(complement);
             if own == target {
                 stats.merged_by_hashing += 1;
+                break;
+            }
+            if window.prove(&reduced, own, target) == WindowAnswer::Proven {
+                stats.merged_by_window += 1;
+                own = target;
                 break;
             }
             match oracle.equal(&reduced, own, target) {
