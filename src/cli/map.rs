@@ -57,6 +57,11 @@ pub struct Args {
     /// Priority cuts kept per node.
     #[arg(long, value_name = "C", default_value_t = 8)]
     pub cuts_per_node: usize,
+    /// Optimise the logic before mapping: SAT sweeping merges nodes that
+    /// are equal up to complement and DAG-aware cut rewriting shrinks small
+    /// cones (the report's `optimize` phase gives the time).
+    #[arg(long)]
+    pub optimize: bool,
     /// Report format.
     #[arg(long, value_enum, default_value = "text")]
     pub format: Format,
@@ -93,6 +98,7 @@ pub fn run(args: Args) -> CmdResult {
         goal,
         cut_size: args.cut_size,
         cuts_per_node: args.cuts_per_node,
+        optimize: args.optimize,
         ..MapOptions::default()
     };
     let outcome = map_detailed(&net, &lib, &opts).map_err(|e| match e {

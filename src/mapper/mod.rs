@@ -75,6 +75,10 @@ pub struct MapOptions {
     pub area_passes: usize,
     /// Rebuild AND/OR/XOR trees before covering.
     pub balance: bool,
+    /// Optimise the logic before mapping (SAT sweeping and DAG-aware cut
+    /// rewriting, see [`crate::optimize`]); XOR and majority nodes are
+    /// lowered to ANDs only when the library has no such cell.
+    pub optimize: bool,
 }
 
 impl Default for MapOptions {
@@ -86,6 +90,7 @@ impl Default for MapOptions {
             delay_slack: 0.10,
             area_passes: 2,
             balance: true,
+            optimize: false,
         }
     }
 }
@@ -107,7 +112,7 @@ pub struct MapOutcome {
     /// The netlist.
     pub netlist: MappedNetlist,
     /// Seconds per phase: `match` (table build, zero when cached),
-    /// `balance`, `cuts` (cut enumeration with the delay cover), `cover`
+    /// `optimize` (zero when off), `balance`, `cuts` (cut enumeration with the delay cover), `cover`
     /// (area recovery and extraction).
     pub seconds: IndexMap<String, f64>,
     /// Nodes of the network that was covered (after balancing).
@@ -205,6 +210,18 @@ pub fn map_detailed(
     }
     let keep_xor = table.has_function(var(0) ^ var(1));
     let keep_maj = table.has_function(majority(var(0), var(1), var(2)));
+    let optimized;
+    let net = if opts.optimize {
+        let mut oopts = crate::optimize::OptimizeOptions::default();
+        oopts.rewrite.lower_xor = !keep_xor;
+        oopts.rewrite.lower_maj = !keep_maj;
+        optimized = crate::optimize::optimize(net, &oopts).0;
+        &optimized
+    } else {
+        net
+    };
+    seconds.insert("optimize".to_string(), t.elapsed().as_secs_f64());
+    let t = Instant::now();
     let (and_width, xor_width) = tree_widths(lib, opts.cut_size);
     let balanced;
     let subject = if opts.balance || !keep_xor || !keep_maj {
