@@ -450,9 +450,7 @@ fn load(net: &Network, opts: &RewriteOptions) -> (Graph, Vec<u32>) {
                 let carry = g.and(c, either);
                 g.or(ab, carry)
             }
-            NodeKind::Maj => {
-                g.push(Kind::Maj, [m(&map, f[0]), m(&map, f[1]), m(&map, f[2])]) << 1
-            }
+            NodeKind::Maj => g.push(Kind::Maj, [m(&map, f[0]), m(&map, f[1]), m(&map, f[2])]) << 1,
         };
     }
     (g, map)
