@@ -212,9 +212,7 @@ pub fn map_detailed(
     let keep_maj = table.has_function(majority(var(0), var(1), var(2)));
     let optimized;
     let net = if opts.optimize {
-        let mut oopts = crate::optimize::OptimizeOptions::default();
-        oopts.rewrite.lower_xor = !keep_xor;
-        oopts.rewrite.lower_maj = !keep_maj;
+        let oopts = crate::optimize::OptimizeOptions::for_library(lib);
         optimized = crate::optimize::optimize(net, &oopts).0;
         &optimized
     } else {

@@ -21,6 +21,7 @@ pub mod factor;
 pub mod rewrite;
 pub mod sweep;
 
+use crate::library::Library;
 use crate::network::Network;
 use rewrite::{rewrite, RewriteOptions};
 use sweep::{sweep, SweepOptions};
@@ -39,11 +40,36 @@ pub struct OptimizeOptions {
 impl Default for OptimizeOptions {
     fn default() -> Self {
         OptimizeOptions {
-            passes: 3,
+            passes: 6,
             sweep: SweepOptions::default(),
             rewrite: RewriteOptions::default(),
         }
     }
+}
+
+impl OptimizeOptions {
+    /// The default settings for mapping onto `lib`: XOR and majority
+    /// nodes are lowered to ANDs unless a single cell of the library
+    /// realises them (in some input and output phase).
+    pub fn for_library(lib: &Library) -> OptimizeOptions {
+        let mut opts = OptimizeOptions::default();
+        opts.rewrite.lower_xor = !has_cell(lib, 2, &[0x6]);
+        opts.rewrite.lower_maj = !has_cell(lib, 3, &[0xE8, 0xD4, 0xB2, 0x8E]);
+        opts
+    }
+}
+
+/// True when a cell of `arity` inputs computes one of `truths` or its
+/// complement (majority's four entries are its input phases up to
+/// complement).
+fn has_cell(lib: &Library, arity: usize, truths: &[u64]) -> bool {
+    let mask = (1u64 << (1 << arity)) - 1;
+    lib.cells.iter().any(|c| {
+        c.arity() == arity && {
+            let t = c.truth & mask;
+            truths.iter().any(|&f| t == f || t == !f & mask)
+        }
+    })
 }
 
 /// What [`optimize`] did.

@@ -45,7 +45,7 @@ pub struct RewriteOptions {
 impl Default for RewriteOptions {
     fn default() -> Self {
         RewriteOptions {
-            cuts_per_node: 8,
+            cuts_per_node: 16,
             lower_xor: true,
             lower_maj: true,
             zero_gain: false,
@@ -76,6 +76,9 @@ struct Cut {
     leaves: [u32; MAX_LEAVES],
     len: u8,
     truth: u16,
+    /// One bit per leaf (leaf id modulo 64), for quick size and
+    /// dominance checks.
+    signature: u64,
 }
 
 impl Cut {
@@ -92,7 +95,7 @@ struct Graph {
     refs: Vec<u32>,
     /// Redirection of a replaced node (packed literal), or `NONE`.
     redirect: Vec<u32>,
-    strash: FxHashMap<(u32, u32), u32>,
+    strash: FxHashMap<u64, u32>,
     cuts: Vec<Option<Vec<Cut>>>,
 }
 
@@ -142,7 +145,7 @@ impl Graph {
 
     /// Trivial simplification of an AND of two live literals: `Ok(lit)`
     /// when it needs no node, `Err(key)` with the normalised pair otherwise.
-    fn simplify(a: u32, b: u32) -> Result<u32, (u32, u32)> {
+    fn simplify(a: u32, b: u32) -> Result<u32, u64> {
         let (a, b) = if a <= b { (a, b) } else { (b, a) };
         if a == 0 {
             return Ok(0);
@@ -153,7 +156,7 @@ impl Graph {
         if a == b ^ 1 {
             return Ok(0);
         }
-        Err((a, b))
+        Err(((a as u64) << 32) | b as u64)
     }
 
     /// An existing node for AND(a, b), as a live literal.
@@ -171,7 +174,7 @@ impl Graph {
                 if let Some(&n) = self.strash.get(&key) {
                     return self.resolve(n << 1);
                 }
-                let n = self.push(Kind::And, [key.0, key.1, 0]);
+                let n = self.push(Kind::And, [(key >> 32) as u32, key as u32, 0]);
                 self.strash.insert(key, n);
                 n << 1
             }
@@ -249,6 +252,7 @@ impl Graph {
             leaves: [node, 0, 0, 0],
             len: 1,
             truth: VAR4[0],
+            signature: 1u64 << (node % 64),
         };
         if self.kind[node as usize] != Kind::And {
             return vec![trivial];
@@ -282,12 +286,31 @@ impl Graph {
         }
         let ca = self.cuts[(a >> 1) as usize].as_deref().expect("computed");
         let cb = self.cuts[(b >> 1) as usize].as_deref().expect("computed");
-        let mut out: Vec<Cut> = Vec::new();
+        let mut out: Vec<Cut> = Vec::with_capacity(2 * limit + 2);
         for x in ca {
             for y in cb {
+                let signature = x.signature | y.signature;
+                if signature.count_ones() as usize > MAX_LEAVES {
+                    continue;
+                }
                 let Some(merged) = merge(x.leaves(), y.leaves()) else {
                     continue;
                 };
+                let mut cut = Cut {
+                    leaves: merged.0,
+                    len: merged.1 as u8,
+                    truth: 0,
+                    signature,
+                };
+                if out
+                    .iter()
+                    .any(|c| c.signature & !signature == 0 && dominates(c.leaves(), cut.leaves()))
+                {
+                    continue;
+                }
+                out.retain(|c| {
+                    !(signature & !c.signature == 0 && dominates(cut.leaves(), c.leaves()))
+                });
                 let leaves = &merged.0[..merged.1];
                 let mut tx = stretch(x.truth, x.leaves(), leaves);
                 let mut ty = stretch(y.truth, y.leaves(), leaves);
@@ -297,15 +320,7 @@ impl Graph {
                 if b & 1 == 1 {
                     ty = !ty;
                 }
-                let cut = Cut {
-                    leaves: merged.0,
-                    len: merged.1 as u8,
-                    truth: tx & ty,
-                };
-                if out.iter().any(|c| dominates(c.leaves(), cut.leaves())) {
-                    continue;
-                }
-                out.retain(|c| !dominates(cut.leaves(), c.leaves()));
+                cut.truth = tx & ty;
                 out.push(cut);
             }
         }
@@ -352,10 +367,11 @@ fn stretch(truth: u16, from: &[u32], to: &[u32]) -> u16 {
     if from == to {
         return truth;
     }
-    let pos: Vec<usize> = from
-        .iter()
-        .map(|l| to.iter().position(|t| t == l).expect("subset"))
-        .collect();
+    let mut pos = [0usize; MAX_LEAVES];
+    for (k, l) in from.iter().enumerate() {
+        pos[k] = to.iter().position(|t| t == l).expect("subset");
+    }
+    let pos = &pos[..from.len()];
     let mut out = 0u16;
     for row in 0..16usize {
         let mut sub = 0usize;
@@ -378,8 +394,14 @@ fn operand_lit(o: Operand, leaves: &[u32], steps: &[u32]) -> u32 {
 
 /// Steps of `s` that would be new nodes, counting existing dead nodes as
 /// new (they would be kept alive). `None` as a step literal means unknown.
-fn added_nodes(g: &Graph, s: &Structure, leaves: &[u32], budget: u32) -> u32 {
-    let mut lits: Vec<Option<u32>> = Vec::with_capacity(s.steps.len());
+fn added_nodes(
+    g: &Graph,
+    s: &Structure,
+    leaves: &[u32],
+    budget: u32,
+    lits: &mut Vec<Option<u32>>,
+) -> u32 {
+    lits.clear();
     let mut added = 0;
     let lit = |o: Operand, lits: &[Option<u32>]| -> Option<u32> {
         match o {
@@ -389,7 +411,7 @@ fn added_nodes(g: &Graph, s: &Structure, leaves: &[u32], budget: u32) -> u32 {
         }
     };
     for step in &s.steps {
-        let found = match (lit(step[0], &lits), lit(step[1], &lits)) {
+        let found = match (lit(step[0], lits), lit(step[1], lits)) {
             (Some(a), Some(b)) => g.find_and(a, b),
             _ => None,
         };
@@ -541,9 +563,11 @@ pub fn rewrite(net: &Network, opts: &RewriteOptions) -> (Network, RewriteCounts)
     for r in roots.drain(..) {
         g.reference(r, &mut stack);
     }
-    let mut cache: FxHashMap<u16, [Structure; 2]> = FxHashMap::default();
+    let mut cache: Vec<Option<Box<[Structure; 2]>>> = vec![None; 1 << 16];
     let original = g.kind.len() as u32;
     let limit = opts.cuts_per_node.max(1);
+    let mut lits = Vec::new();
+    let mut cuts: Vec<Cut> = Vec::new();
     for node in 1..original {
         if g.kind[node as usize] != Kind::And
             || g.refs[node as usize] == 0
@@ -551,7 +575,8 @@ pub fn rewrite(net: &Network, opts: &RewriteOptions) -> (Network, RewriteCounts)
         {
             continue;
         }
-        let cuts: Vec<Cut> = g.cuts_of(node, limit).to_vec();
+        cuts.clear();
+        cuts.extend_from_slice(g.cuts_of(node, limit));
         // Best: (gain, cut index, structure index or NONE for a literal).
         let mut best: Option<(u32, usize, u32)> = None;
         let saved_refs = g.refs[node as usize];
@@ -561,6 +586,12 @@ pub fn rewrite(net: &Network, opts: &RewriteOptions) -> (Network, RewriteCounts)
             }
             let leaves = cut.leaves();
             let dead = g.deref_cone(node, leaves, &mut stack);
+            if dead < 2 && !opts.zero_gain {
+                // Only the node itself would go: a structure must then exist
+                // whole, which is a duplicate the sweep merges anyway.
+                g.ref_cone(node, leaves, &mut stack);
+                continue;
+            }
             g.refs[node as usize] = 0;
             let truth = cut.truth;
             let literal = truth == 0
@@ -571,10 +602,11 @@ pub fn rewrite(net: &Network, opts: &RewriteOptions) -> (Network, RewriteCounts)
                     best = Some((dead, ci, NONE));
                 }
             } else {
-                let options = cache.entry(truth).or_insert_with(|| structures(truth));
+                let options =
+                    cache[truth as usize].get_or_insert_with(|| Box::new(structures(truth)));
                 for (si, s) in options.iter().enumerate() {
                     let budget = dead + opts.zero_gain as u32;
-                    let added = added_nodes(&g, s, leaves, budget);
+                    let added = added_nodes(&g, s, leaves, budget, &mut lits);
                     if added > dead || (added == dead && !opts.zero_gain) {
                         continue;
                     }
@@ -605,7 +637,7 @@ pub fn rewrite(net: &Network, opts: &RewriteOptions) -> (Network, RewriteCounts)
                 (leaves[v] << 1) | (t == !VAR4[v]) as u32
             }
         } else {
-            let s = cache[&cut.truth][si as usize].clone();
+            let s = cache[cut.truth as usize].as_ref().expect("evaluated")[si as usize].clone();
             match build(&mut g, &s, leaves, node) {
                 Some(l) => l,
                 None => continue,
