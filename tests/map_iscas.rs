@@ -66,6 +66,8 @@ fn iscas85_areas_against_the_commercial_mapping() {
             "{c}"
         );
         let area = mapped.area(&lib);
+        // The optimiser keeps the unoptimised network among its candidates.
+        assert!(area <= plain, "{c}: {area} > {plain}");
         log_sum += (area / reference).ln();
         log_plain += (plain / reference).ln();
         table.push_str(&format!(
@@ -80,9 +82,9 @@ fn iscas85_areas_against_the_commercial_mapping() {
     let mean = (log_sum / CIRCUITS.len() as f64).exp();
     let plain_mean = (log_plain / CIRCUITS.len() as f64).exp();
     eprintln!("{table}geometric mean ratio {mean:.3} (without optimisation {plain_mean:.3})");
-    // Regression bounds on the measured ratios (0.974 with optimisation,
+    // Regression bounds on the measured ratios (0.959 with optimisation,
     // 1.046 without, when this test was last changed).
-    assert!(mean <= 0.98, "geometric mean ratio {mean:.3}");
+    assert!(mean <= 0.965, "geometric mean ratio {mean:.3}");
     assert!(plain_mean <= 1.08, "geometric mean ratio {plain_mean:.3}");
 }
 

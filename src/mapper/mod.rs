@@ -76,8 +76,10 @@ pub struct MapOptions {
     /// Rebuild AND/OR/XOR trees before covering.
     pub balance: bool,
     /// Optimise the logic before mapping (SAT sweeping and DAG-aware cut
-    /// rewriting, see [`crate::optimize`]); XOR and majority nodes are
-    /// lowered to ANDs only when the library has no such cell.
+    /// rewriting, see [`crate::optimize`]), keeping the candidate network
+    /// that maps to the least area (the network is mapped once per pass);
+    /// XOR and majority nodes are lowered to ANDs only when the library
+    /// has no such cell.
     pub optimize: bool,
 }
 
@@ -212,8 +214,14 @@ pub fn map_detailed(
     let keep_maj = table.has_function(majority(var(0), var(1), var(2)));
     let optimized;
     let net = if opts.optimize {
+        // Candidates are scored by the area the mapper gives them.
+        let plain = MapOptions {
+            optimize: false,
+            ..opts.clone()
+        };
+        let score = |n: &Network| map(n, lib, &plain).map_or(f64::INFINITY, |m| m.area(lib));
         let oopts = crate::optimize::OptimizeOptions::for_library(lib);
-        optimized = crate::optimize::optimize(net, &oopts).0;
+        optimized = crate::optimize::optimize_scored(net, &oopts, score).0;
         &optimized
     } else {
         net

@@ -31,16 +31,21 @@ use sweep::{sweep, SweepOptions};
 pub struct OptimizeOptions {
     /// Rewriting passes (each followed by a sweep).
     pub passes: usize,
+    /// Let every second pass apply replacements that save nothing: they
+    /// restructure the logic so that the next pass finds new savings.
+    pub alternate_zero_gain: bool,
     /// Settings of the sweeps.
     pub sweep: SweepOptions,
-    /// Settings of the rewriting passes.
+    /// Settings of the rewriting passes (`zero_gain` is set per pass when
+    /// `alternate_zero_gain` is on).
     pub rewrite: RewriteOptions,
 }
 
 impl Default for OptimizeOptions {
     fn default() -> Self {
         OptimizeOptions {
-            passes: 6,
+            passes: 10,
+            alternate_zero_gain: true,
             sweep: SweepOptions::default(),
             rewrite: RewriteOptions::default(),
         }
@@ -83,29 +88,63 @@ pub struct OptimizeCounts {
     pub merged: u64,
     /// Replacements applied by rewriting.
     pub replaced: u64,
+    /// Passes run.
+    pub passes: usize,
 }
 
-/// Optimises `net` for size: a sweep, then `passes` rounds of rewriting
-/// and sweeping. Stops early when a round changes nothing. The result has
-/// the ports and storage elements of `net` and the same output functions.
+/// Optimises `net` for size: a sweep, then up to `passes` rounds of
+/// rewriting and sweeping; returns the network with the fewest logic nodes
+/// seen. See [`optimize_scored`].
 pub fn optimize(net: &Network, opts: &OptimizeOptions) -> (Network, OptimizeCounts) {
+    optimize_scored(net, opts, |n| n.gate_count() as f64)
+}
+
+/// Like [`optimize`], but keeps the network with the least `score` among
+/// `net` itself, the sweep's result and every pass's (ties: the earlier),
+/// so the result never scores worse than the input. The mapper
+/// scores by mapped area, so a pass that shrinks the node count but maps
+/// worse is never taken. Stops early when a pass without zero-gain
+/// replacements changes nothing. The result has the ports and storage
+/// elements of `net` and the same output functions.
+pub fn optimize_scored(
+    net: &Network,
+    opts: &OptimizeOptions,
+    mut score: impl FnMut(&Network) -> f64,
+) -> (Network, OptimizeCounts) {
     let mut counts = OptimizeCounts {
         nodes_before: net.gate_count(),
         ..OptimizeCounts::default()
     };
+    let mut best_score = score(net);
+    let mut best = net.cleanup();
     let (mut current, swept) = sweep(net, &opts.sweep);
     counts.merged += swept.merged_by_hashing + swept.merged_by_proof;
-    for _ in 0..opts.passes {
-        let (rewritten, done) = rewrite(&current, &opts.rewrite);
+    let s = score(&current);
+    if s < best_score {
+        best_score = s;
+        best = current.clone();
+    }
+    for pass in 0..opts.passes {
+        let mut ropts = opts.rewrite;
+        if opts.alternate_zero_gain {
+            ropts.zero_gain = pass % 2 == 1;
+        }
+        let (rewritten, done) = rewrite(&current, &ropts);
         counts.replaced += done.replaced;
+        counts.passes += 1;
         let (next, swept) = sweep(&rewritten, &opts.sweep);
         counts.merged += swept.merged_by_hashing + swept.merged_by_proof;
-        let unchanged = done.replaced == 0 && next.gate_count() == current.gate_count();
+        let unchanged = !ropts.zero_gain && done.replaced == 0 && swept == Default::default();
         current = next;
         if unchanged {
             break;
         }
+        let s = score(&current);
+        if s < best_score {
+            best_score = s;
+            best = current.clone();
+        }
     }
-    counts.nodes_after = current.gate_count();
-    (current, counts)
+    counts.nodes_after = best.gate_count();
+    (best, counts)
 }
