@@ -34,7 +34,7 @@ fn random_network(seed: u64, inputs: usize, gates: usize, outputs: usize) -> Net
             pick(&mut rng, &signals),
         );
         let g = match rng.below(5) {
-            0 | 1 | 2 => net.and(a, b),
+            0..=2 => net.and(a, b),
             3 => net.xor(a, b),
             _ => net.maj(a, b, c),
         };

@@ -27,7 +27,7 @@ pub enum Operand {
 
 impl Operand {
     /// The operand with its complement flag flipped.
-    pub fn not(self) -> Operand {
+    pub fn complement(self) -> Operand {
         match self {
             Operand::Leaf(v, c) => Operand::Leaf(v, !c),
             Operand::Step(i, c) => Operand::Step(i, !c),
@@ -196,7 +196,7 @@ fn emit(form: &Form, steps: &mut Vec<[Operand; 2]>) -> Operand {
         }
         Form::Or(a, b) => {
             let (a, b) = (emit(a, steps), emit(b, steps));
-            and_step(a.not(), b.not(), steps).not()
+            and_step(a.complement(), b.complement(), steps).complement()
         }
     }
 }
@@ -227,7 +227,7 @@ pub fn structure(truth: u16) -> Structure {
 pub fn structures(truth: u16) -> [Structure; 2] {
     let plain = structure(truth);
     let mut flipped = structure(!truth);
-    flipped.output = flipped.output.not();
+    flipped.output = flipped.output.complement();
     if flipped.steps.len() < plain.steps.len() {
         [flipped, plain]
     } else {

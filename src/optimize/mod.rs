@@ -24,13 +24,16 @@ pub mod sweep;
 use crate::library::Library;
 use crate::network::Network;
 use rewrite::{rewrite, RewriteOptions};
-use sweep::{sweep, SweepOptions};
+use sweep::{sweep, SweepCounts, SweepOptions};
 
 /// Settings of [`optimize`].
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct OptimizeOptions {
     /// Rewriting passes (each followed by a sweep).
     pub passes: usize,
+    /// Stop after this many passes in a row that did not improve the
+    /// score.
+    pub patience: usize,
     /// Let every second pass apply replacements that save nothing: they
     /// restructure the logic so that the next pass finds new savings.
     pub alternate_zero_gain: bool,
@@ -45,6 +48,7 @@ impl Default for OptimizeOptions {
     fn default() -> Self {
         OptimizeOptions {
             passes: 10,
+            patience: 8,
             alternate_zero_gain: true,
             sweep: SweepOptions::default(),
             rewrite: RewriteOptions::default(),
@@ -104,7 +108,9 @@ pub fn optimize(net: &Network, opts: &OptimizeOptions) -> (Network, OptimizeCoun
 /// so the result never scores worse than the input. The mapper
 /// scores by mapped area, so a pass that shrinks the node count but maps
 /// worse is never taken. Stops early when a pass without zero-gain
-/// replacements changes nothing. The result has the ports and storage
+/// replacements changes nothing, or after `patience` passes in a row
+/// without a better score. Nothing is scored while no candidate differs
+/// from the input. The result has the ports and storage
 /// elements of `net` and the same output functions.
 pub fn optimize_scored(
     net: &Network,
@@ -115,15 +121,20 @@ pub fn optimize_scored(
         nodes_before: net.gate_count(),
         ..OptimizeCounts::default()
     };
-    let mut best_score = score(net);
-    let mut best = net.cleanup();
+    // The input is scored only once some candidate differs from it.
+    let mut best: Option<(Network, f64)> = None;
     let (mut current, swept) = sweep(net, &opts.sweep);
     counts.merged += swept.merged_by_hashing + swept.merged_by_proof;
-    let s = score(&current);
-    if s < best_score {
-        best_score = s;
-        best = current.clone();
+    if swept != SweepCounts::default() {
+        let s = score(&current);
+        let input = score(net);
+        best = Some(if s < input {
+            (current.clone(), s)
+        } else {
+            (net.cleanup(), input)
+        });
     }
+    let mut since_better = 0;
     for pass in 0..opts.passes {
         let mut ropts = opts.rewrite;
         if opts.alternate_zero_gain {
@@ -134,17 +145,30 @@ pub fn optimize_scored(
         counts.passes += 1;
         let (next, swept) = sweep(&rewritten, &opts.sweep);
         counts.merged += swept.merged_by_hashing + swept.merged_by_proof;
-        let unchanged = !ropts.zero_gain && done.replaced == 0 && swept == Default::default();
+        let unchanged = !ropts.zero_gain && done.replaced == 0 && swept == SweepCounts::default();
         current = next;
         if unchanged {
             break;
         }
         let s = score(&current);
+        let best_score = match &best {
+            Some((_, b)) => *b,
+            None => score(net),
+        };
         if s < best_score {
-            best_score = s;
-            best = current.clone();
+            best = Some((current.clone(), s));
+            since_better = 0;
+        } else {
+            if best.is_none() {
+                best = Some((net.cleanup(), best_score));
+            }
+            since_better += 1;
+            if since_better >= opts.patience {
+                break;
+            }
         }
     }
+    let best = best.map_or_else(|| net.cleanup(), |(n, _)| n);
     counts.nodes_after = best.gate_count();
     (best, counts)
 }

@@ -378,7 +378,7 @@ fn stretch(truth: u16, from: &[u32], to: &[u32]) -> u16 {
         for (k, &p) in pos.iter().enumerate() {
             sub |= ((row >> p) & 1) << k;
         }
-        out |= (((truth >> sub) & 1) as u16) << row;
+        out |= ((truth >> sub) & 1) << row;
     }
     out
 }
