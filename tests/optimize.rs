@@ -191,3 +191,33 @@ fn storage_elements_pass_through() {
     assert_eq!(out.storage()["r"].next, out.inputs()["a"].lit());
     assert_eq!(tables(&net), tables(&out));
 }
+
+#[test]
+fn map_command_optimises_on_request_and_proves_the_result() {
+    // c432 (Hansen et al. 1999 circuits, via PROVENANCE.md) on nand-nor-inv.
+    let run = |extra: &[&str]| {
+        let out = assert_cmd::Command::cargo_bin("ribbonmap")
+            .unwrap()
+            .args([
+                "map",
+                "tests/data/reference/netlists/iscas85/c432.v",
+                "--lib",
+                "nand-nor-inv",
+                "--goal",
+                "area",
+                "--format",
+                "json",
+            ])
+            .args(extra)
+            .output()
+            .unwrap();
+        assert!(out.status.success());
+        let json: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        assert_eq!(json["verified"], "proven");
+        (json["area"].as_f64().unwrap(), json)
+    };
+    let (plain, _) = run(&[]);
+    let (optimised, json) = run(&["--optimize"]);
+    assert!(optimised < plain, "{optimised} >= {plain}");
+    assert!(json["seconds"]["optimize"].as_f64().unwrap() > 0.0);
+}

@@ -59,7 +59,8 @@ pub struct Args {
     pub cuts_per_node: usize,
     /// Optimise the logic before mapping: SAT sweeping merges nodes that
     /// are equal up to complement and DAG-aware cut rewriting shrinks small
-    /// cones (the report's `optimize` phase gives the time).
+    /// cones; of the networks this produces, the one that maps to the
+    /// least area is mapped (the report's `optimize` phase gives the time).
     #[arg(long)]
     pub optimize: bool,
     /// Report format.
