@@ -83,7 +83,7 @@ pub(super) fn print_table(
     metric: Metric,
 ) -> Result<(), CliError> {
     let table = ComparisonTable::build(records, baseline);
-    print!("{}", render(&table, table_format(format)));
+    out!("{}", render(&table, table_format(format)));
     if let Some(path) = chart {
         crate::fsutil::write_atomic(path, render_svg(&table, metric).as_bytes())
             .map_err(|e| CliError::Input(format!("cannot write {}: {e}", path.display())))?;

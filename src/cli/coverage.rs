@@ -61,7 +61,7 @@ pub fn run(args: Args) -> CmdResult {
         Format::Markdown => render_rows(&tables, RowStyle::Markdown),
         Format::Latex => render_rows(&tables, RowStyle::Latex),
     };
-    print!("{text}");
+    out!("{text}");
     Ok(EXIT_OK)
 }
 
@@ -101,6 +101,11 @@ fn render_json(tables: &[Coverage]) -> Result<String, CliError> {
                 "library_hash": t.library_hash,
                 "cached": t.cached,
                 "seconds": t.seconds,
+                "slowest_class": t.slowest_class().map(|c| serde_json::json!({
+                    "representative": format!("0x{:X}", c.representative),
+                    "cells": c.cells,
+                    "seconds": c.seconds,
+                })),
             })
         })
         .collect();
@@ -176,8 +181,17 @@ fn render_text(tables: &[Coverage]) -> String {
         out.push('\n');
     }
     for t in tables {
+        let slowest = t
+            .slowest_class()
+            .map(|c| {
+                format!(
+                    "; slowest class 0x{:X} took {:.2} s",
+                    c.representative, c.seconds
+                )
+            })
+            .unwrap_or_default();
         out.push_str(&format!(
-            "{}: {}\n",
+            "{}: {}{slowest}\n",
             t.name,
             if t.cached {
                 "from cache".to_string()

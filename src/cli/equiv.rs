@@ -80,11 +80,11 @@ pub fn run(args: Args) -> CmdResult {
         )),
     })?;
     match args.format {
-        Format::Json => println!(
+        Format::Json => outln!(
             "{}",
             serde_json::to_string_pretty(&to_json(&report)).expect("JSON values serialise")
         ),
-        _ => print!("{}", to_text(&report, &args.netlist_a, &args.netlist_b)),
+        _ => out!("{}", to_text(&report, &args.netlist_a, &args.netlist_b)),
     }
     Ok(match report.verdict {
         Verdict::Equivalent { .. } => EXIT_OK,

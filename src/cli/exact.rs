@@ -128,21 +128,21 @@ pub fn run(args: Args) -> CmdResult {
                 "sat_calls": result.sat_calls,
                 "seconds": seconds,
             });
-            println!(
+            outln!(
                 "{}",
                 serde_json::to_string_pretty(&value)
                     .map_err(|e| CliError::Internal(e.to_string()))?
             );
         }
         _ => {
-            println!(
+            outln!(
                 "function   {} over {} inputs",
                 tables.join(","),
                 args.inputs
             );
-            println!("library    {}", library.name);
-            println!("objective  {objective_name}");
-            println!(
+            outln!("library    {}", library.name);
+            outln!("objective  {objective_name}");
+            outln!(
                 "cells      {}{}",
                 result.cells,
                 if result.optimal {
@@ -151,12 +151,12 @@ pub fn run(args: Args) -> CmdResult {
                     "  (not proven minimal: a limit stopped the proof)"
                 }
             );
-            println!("area       {} {}", result.area, library.units.area);
-            println!("depth      {}", result.depth);
-            println!("time       {seconds:.3} s, {} SAT calls", result.sat_calls);
-            println!("netlist");
+            outln!("area       {} {}", result.area, library.units.area);
+            outln!("depth      {}", result.depth);
+            outln!("time       {seconds:.3} s, {} SAT calls", result.sat_calls);
+            outln!("netlist");
             for line in result.netlist() {
-                println!("  {line}");
+                outln!("  {line}");
             }
         }
     }

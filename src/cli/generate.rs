@@ -57,7 +57,7 @@ pub fn family_table() -> String {
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
     if args.list {
-        print!("{}", family_table());
+        out!("{}", family_table());
         return Ok(EXIT_OK);
     }
     let family: Family = match &args.family {

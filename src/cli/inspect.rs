@@ -48,9 +48,9 @@ pub fn run(args: Args) -> CmdResult {
         Format::Json => {
             let text = serde_json::to_string_pretty(&summary)
                 .map_err(|e| CliError::Internal(format!("cannot encode the summary: {e}")))?;
-            println!("{text}");
+            outln!("{text}");
         }
-        _ => print!(
+        _ => out!(
             "{}",
             text_report(&summary, &args.netlist.display().to_string())
         ),

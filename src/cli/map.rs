@@ -57,6 +57,12 @@ pub struct Args {
     /// Priority cuts kept per node.
     #[arg(long, value_name = "C", default_value_t = 8)]
     pub cuts_per_node: usize,
+    /// Also match provably smallest networks (exact synthesis over the
+    /// library) for cut functions of up to four inputs. Each new function
+    /// costs a SAT search the first time; results are cached on disk
+    /// (RIBBONMAP_CACHE_DIR, else the user cache folder).
+    #[arg(long)]
+    pub optimum: bool,
     /// Optimise the logic before mapping: SAT sweeping merges nodes that
     /// are equal up to complement and DAG-aware cut rewriting shrinks small
     /// cones; of the networks this produces, the one that maps to the
@@ -99,6 +105,7 @@ pub fn run(args: Args) -> CmdResult {
         goal,
         cut_size: args.cut_size,
         cuts_per_node: args.cuts_per_node,
+        optimum: args.optimum,
         optimize: args.optimize,
         ..MapOptions::default()
     };
@@ -162,7 +169,7 @@ pub fn run(args: Args) -> CmdResult {
             }
             let text = serde_json::to_string_pretty(&value)
                 .map_err(|e| CliError::Internal(format!("cannot encode the report: {e}")))?;
-            println!("{text}");
+            outln!("{text}");
         }
         _ => {
             let energy_lines = format!(
@@ -171,8 +178,8 @@ pub fn run(args: Args) -> CmdResult {
             );
             let text = report.to_text();
             match text.find("verified  ") {
-                Some(at) => print!("{}{energy_lines}{}", &text[..at], &text[at..]),
-                None => print!("{text}{energy_lines}"),
+                Some(at) => out!("{}{energy_lines}{}", &text[..at], &text[at..]),
+                None => out!("{text}{energy_lines}"),
             }
         }
     }

@@ -4,6 +4,27 @@
 //! the library, prints, and returns an exit code. Errors of every layer are
 //! turned into a [`CliError`] here, which fixes the exit code (DESIGN.md:
 //! 2 bad usage or input, 70 internal error) and prints one `error:` line.
+//! Commands print through [`out!`]/[`outln!`], which end the process quietly
+//! when the reader of standard output has gone (`ribbonmap map x | head`).
+
+/// Writes to standard output like `print!`; a closed pipe ends the process
+/// with exit code 0 instead of a panic.
+macro_rules! out {
+    ($($arg:tt)*) => {
+        $crate::cli::write_stdout(format_args!($($arg)*))
+    };
+}
+
+/// [`out!`] with a newline.
+macro_rules! outln {
+    () => {
+        $crate::cli::write_stdout(format_args!("\n"))
+    };
+    ($($arg:tt)*) => {{
+        $crate::cli::write_stdout(format_args!($($arg)*));
+        $crate::cli::write_stdout(format_args!("\n"));
+    }};
+}
 
 pub mod common;
 mod compare;
@@ -93,6 +114,18 @@ enum Command {
     Generate(generate::Args),
     /// List, show or check cell libraries.
     Library(library::Args),
+}
+
+/// Writes `text` to standard output. When the reader has closed the pipe
+/// there is nobody left to tell, so the process ends with exit code 0.
+pub(crate) fn write_stdout(text: std::fmt::Arguments) {
+    use std::io::Write;
+    let mut stdout = std::io::stdout().lock();
+    if let Err(e) = stdout.write_fmt(text) {
+        if e.kind() == std::io::ErrorKind::BrokenPipe {
+            std::process::exit(0);
+        }
+    }
 }
 
 /// Parses the command line, runs the command and maps errors to exit codes.

@@ -61,6 +61,9 @@ pub(crate) struct CachedClass {
     pub representative: u64,
     pub cells: Option<usize>,
     pub optimal: bool,
+    /// Seconds the synthesis took when the class was computed.
+    #[serde(default)]
+    pub seconds: f64,
 }
 
 #[derive(Serialize, Deserialize)]

@@ -63,6 +63,9 @@ pub struct ClassCost {
     pub cells: Option<usize>,
     /// Whether `cells` is proven minimal.
     pub optimal: bool,
+    /// Seconds its synthesis took (as recorded when it was computed, also
+    /// for a cached table).
+    pub seconds: f64,
 }
 
 /// Cell counts over one NPN class (only without free complements).
@@ -109,6 +112,15 @@ pub struct Coverage {
     pub cached: bool,
     /// Seconds spent computing (0 when cached).
     pub seconds: f64,
+}
+
+impl Coverage {
+    /// The class whose synthesis took longest, with its seconds.
+    pub fn slowest_class(&self) -> Option<&ClassCost> {
+        self.classes
+            .iter()
+            .max_by(|a, b| a.seconds.total_cmp(&b.seconds))
+    }
 }
 
 /// Computes the coverage table of `gates` (named `name`) for all functions
@@ -175,17 +187,22 @@ fn coverage_keyed(
             let results: Vec<Result<CachedClass, ExactError>> = classes
                 .par_iter()
                 .map(|class| {
-                    match synthesize(&[class.representative], opts.inputs, gates, &exact) {
+                    let started = Instant::now();
+                    let found = synthesize(&[class.representative], opts.inputs, gates, &exact);
+                    let seconds = started.elapsed().as_secs_f64();
+                    match found {
                         Ok(r) => Ok(CachedClass {
                             representative: class.representative,
                             cells: Some(r.cells),
                             optimal: r.optimal,
+                            seconds,
                         }),
                         Err(ExactError::NotFound(_)) | Err(ExactError::LimitReached) => {
                             Ok(CachedClass {
                                 representative: class.representative,
                                 cells: None,
                                 optimal: false,
+                                seconds,
                             })
                         }
                         Err(e) => Err(e),
@@ -226,6 +243,7 @@ fn coverage_keyed(
             functions: class.size,
             cells: solved.cells,
             optimal: solved.optimal,
+            seconds: solved.seconds,
         });
     }
     let npn_classes = if opts.free_complements {

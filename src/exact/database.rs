@@ -24,7 +24,7 @@ use super::synthesize::{synthesize, ExactOptions, ExactResult, Objective, Source
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::sync::{Arc, RwLock};
 
 /// Largest number of inputs the database serves.
@@ -171,10 +171,27 @@ impl OptimumDatabase {
     /// Adds the entries saved in the cache folder for this gate set and
     /// objective; returns how many were read.
     pub fn load_from_cache(&self) -> usize {
-        let Some(path) = self.file_path() else {
-            return 0;
-        };
-        let Some(file) = cache::read_json::<DatabaseFile>(&path) else {
+        match self.file_path() {
+            Some(path) => self.load_file(&path),
+            None => 0,
+        }
+    }
+
+    /// Saves all entries to the cache folder (atomically).
+    pub fn save_to_cache(&self) -> std::io::Result<()> {
+        match self.file_path() {
+            Some(path) => self.save_file(&path),
+            None => Ok(()),
+        }
+    }
+
+    /// Adds the entries of a database file written by [`Self::save_file`]
+    /// (or found in the cache folder) for the same gate set and options.
+    /// Every entry is checked by simulation; entries that fail, and files
+    /// for another gate set, objective or complement mode, are ignored.
+    /// Returns how many entries were added.
+    pub fn load_file(&self, path: &Path) -> usize {
+        let Some(file) = cache::read_json::<DatabaseFile>(path) else {
             return 0;
         };
         if file.format != cache::format_tag()
@@ -187,9 +204,12 @@ impl OptimumDatabase {
         let mut count = 0;
         if let Ok(mut entries) = self.entries.write() {
             for (inputs, rep, result) in file.entries {
-                let valid = result
-                    .as_ref()
-                    .is_none_or(|r| r.simulate(&self.gates) == vec![rep]);
+                let valid = inputs <= DATABASE_MAX_INPUTS
+                    && result.as_ref().is_none_or(|r| {
+                        r.inputs == inputs
+                            && r.is_well_formed(&self.gates)
+                            && r.simulate(&self.gates) == vec![rep]
+                    });
                 if valid {
                     entries.insert((inputs, rep), result.map(Arc::new));
                     count += 1;
@@ -199,11 +219,8 @@ impl OptimumDatabase {
         count
     }
 
-    /// Saves all entries to the cache folder (atomically).
-    pub fn save_to_cache(&self) -> std::io::Result<()> {
-        let Some(path) = self.file_path() else {
-            return Ok(());
-        };
+    /// Writes all entries to `path` (atomically, creating its folder).
+    pub fn save_file(&self, path: &Path) -> std::io::Result<()> {
         let mut entries: Vec<(usize, u64, Option<ExactResult>)> = match self.entries.read() {
             Ok(e) => e
                 .iter()
@@ -213,7 +230,7 @@ impl OptimumDatabase {
         };
         entries.sort_by_key(|e| (e.0, e.1));
         cache::write_json(
-            &path,
+            path,
             &DatabaseFile {
                 format: cache::format_tag().to_string(),
                 library_hash: self.hash.clone(),

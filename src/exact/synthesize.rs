@@ -341,6 +341,10 @@ impl Search<'_> {
         let mut proven = first.optimal;
         let costs = scaled_areas(self.problem.variants);
         let cheapest = costs.iter().copied().min().unwrap_or(0);
+        if costs.iter().all(|&c| c == cheapest) {
+            // Equal areas: the fewest cells are the least area.
+            return Ok(first);
+        }
         let cost_of = |d: &Decoded| d.steps.iter().map(|(v, _)| costs[*v]).sum::<u64>();
         let mut best_decoded: Option<Decoded> = None;
         let mut best = u64::MAX;
@@ -623,6 +627,25 @@ impl ExactResult {
             levels.push(level);
         }
         levels
+    }
+
+    /// Whether every step names a gate of `gates` with the right number of
+    /// pins and every signal refers to an input below `inputs` or an earlier
+    /// step (checked before simulating a network read from a file).
+    pub fn is_well_formed(&self, gates: &[GateSpec]) -> bool {
+        let operand_ok = |op: &Operand, steps_before: usize| match op.source {
+            Source::Constant => true,
+            Source::Input(k) => k < self.inputs,
+            Source::Step(j) => j < steps_before,
+        };
+        self.inputs <= 6
+            && self.steps.iter().enumerate().all(|(i, step)| {
+                gates
+                    .get(step.gate)
+                    .is_some_and(|g| g.arity == step.fanins.len())
+                    && step.fanins.iter().all(|f| operand_ok(f, i))
+            })
+            && self.outputs.iter().all(|o| operand_ok(o, self.steps.len()))
     }
 
     /// Truth table of every output, computed by simulating the steps with

@@ -38,6 +38,8 @@ struct Builder {
     /// Level of every node of `out`, counted in groups.
     level: Vec<u32>,
     keep_xor: bool,
+    /// The tree builder's queue, kept to reuse its buffer.
+    heap: BinaryHeap<Reverse<(u32, u32, u32)>>,
 }
 
 impl Builder {
@@ -73,9 +75,10 @@ impl Builder {
     }
 
     /// Builds the operator over `leaves` as groups of `width`.
-    fn tree(&mut self, leaves: Vec<Lit>, width: usize, is_xor: bool) -> Lit {
+    fn tree(&mut self, leaves: &[Lit], width: usize, is_xor: bool) -> Lit {
         let width = width.max(2);
-        let mut heap: BinaryHeap<Reverse<(u32, u32, u32)>> = BinaryHeap::new();
+        let mut heap = std::mem::take(&mut self.heap);
+        heap.clear();
         for (seq, &l) in leaves.iter().enumerate() {
             heap.push(Reverse((self.level_of(l), seq as u32, l.raw())));
         }
@@ -109,6 +112,7 @@ impl Builder {
             group = width;
         }
         let Reverse((_, _, raw)) = heap.pop().expect("one left");
+        self.heap = heap;
         Lit::from_raw(raw)
     }
 }
@@ -140,6 +144,7 @@ pub fn balance(net: &Network, opts: &BalanceOptions) -> Network {
         out: net.empty_like(),
         level: Vec::new(),
         keep_xor: opts.keep_xor,
+        heap: BinaryHeap::new(),
     };
     b.out.reserve(n);
     b.level.resize(b.out.num_nodes(), 0);
@@ -153,6 +158,8 @@ pub fn balance(net: &Network, opts: &BalanceOptions) -> Network {
     }
     let m = |map: &Vec<Lit>, l: Lit| map[l.node().index()].xor(l.is_complemented());
     let mut stack: Vec<Lit> = Vec::new();
+    let mut leaves: Vec<Lit> = Vec::new();
+    let mut kept: Vec<Lit> = Vec::new();
     for id in net.node_ids() {
         let i = id.index();
         if !reach[i] || absorbed[i] {
@@ -177,7 +184,7 @@ pub fn balance(net: &Network, opts: &BalanceOptions) -> Network {
             }
             kind @ (NodeKind::And | NodeKind::Xor) => {
                 let is_xor = kind == NodeKind::Xor;
-                let mut leaves: Vec<Lit> = Vec::new();
+                leaves.clear();
                 let mut parity = false;
                 stack.clear();
                 stack.extend_from_slice(net.fanins(id));
@@ -201,8 +208,8 @@ pub fn balance(net: &Network, opts: &BalanceOptions) -> Network {
                 leaves.sort_unstable();
                 let value = if is_xor {
                     // Pairs cancel.
-                    let mut kept: Vec<Lit> = Vec::with_capacity(leaves.len());
-                    for l in leaves {
+                    kept.clear();
+                    for &l in &leaves {
                         if kept.last() == Some(&l) {
                             kept.pop();
                         } else {
@@ -213,7 +220,7 @@ pub fn balance(net: &Network, opts: &BalanceOptions) -> Network {
                     if kept.is_empty() {
                         Lit::FALSE
                     } else {
-                        b.tree(kept, opts.xor_width, true)
+                        b.tree(&kept, opts.xor_width, true)
                     }
                     .xor(parity)
                 } else {
@@ -226,7 +233,7 @@ pub fn balance(net: &Network, opts: &BalanceOptions) -> Network {
                         if leaves.is_empty() {
                             Lit::TRUE
                         } else {
-                            b.tree(leaves, opts.and_width, false)
+                            b.tree(&leaves, opts.and_width, false)
                         }
                     }
                 };

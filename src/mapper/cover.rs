@@ -19,6 +19,20 @@
 //! delay plus the allowed slack, or none for pure area), propagated backwards
 //! through the current cover. Everything iterates in index order and breaks
 //! ties by position, so the result is deterministic.
+//!
+//! Why the state is shaped as it is (mapping speed is memory traffic):
+//! - one record per node phase holds the choice, its reference count and the
+//!   digest of its implementation, so a cone walk touches one place per
+//!   phase; arrival and area flow sit side by side in a second array;
+//! - implementations in use are digested on first use (area, load term,
+//!   leaf uses packed as `2 * position + complemented`), so walks and cost
+//!   evaluation do not chase the match table's nested vectors;
+//! - the exact-area pass first computes every option's arrival and area
+//!   flow, walks no cone when at most one option meets the required time,
+//!   and otherwise walks only options that can still win (in time, and
+//!   whose own cells do not already cost more than the best cone so far).
+//!   These shortcuts skip only work whose outcome is known, so the choices
+//!   are exactly those of the plain pass.
 
 use super::cuts::{CutStore, Scratch};
 use super::implementation::Source;
@@ -36,6 +50,27 @@ const EPS: f32 = 1e-4;
 /// Most node phases one trial of the exact-area pass walks.
 const TRIAL_LIMIT: usize = 24;
 
+/// Names for generated nets and instances that avoid the netlist's own
+/// port and storage names.
+struct FreshNames<'n> {
+    reserved: HashSet<&'n str>,
+    /// False when no reserved name has the shape of a generated one.
+    clash_possible: bool,
+}
+
+impl FreshNames<'_> {
+    /// `prefix` and `i`, with underscores appended while that is taken.
+    fn fresh(&self, prefix: &str, i: usize) -> String {
+        let mut name = format!("{prefix}{i}");
+        if self.clash_possible {
+            while self.reserved.contains(name.as_str()) {
+                name.push('_');
+            }
+        }
+        name
+    }
+}
+
 /// What a selection pass optimises.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Rank {
@@ -52,20 +87,66 @@ pub struct Cover<'a> {
     table: &'a MatchTable,
     /// Cuts of every node.
     pub cuts: CutStore,
-    choice: Vec<u32>,
-    arrival: Vec<f32>,
-    flow: Vec<f32>,
+    /// Per node phase (`2 * node + phase`): the choice and its reference
+    /// count side by side, as the cone walks read both.
+    phases: Vec<PhaseState>,
+    /// Per node phase: arrival and area flow of the choice.
+    cost: Vec<PhaseCost>,
     required: Vec<f32>,
-    refs: Vec<u32>,
     load: Vec<f32>,
     fanout_estimate: Vec<f32>,
     inverter: u32,
     inverter_area: f32,
+    /// Per match-table implementation id: its index in `digests`, or `NONE`
+    /// before first use.
+    digest_of: Vec<u32>,
+    /// What the passes read of the implementations in use, packed.
+    digests: Vec<Digest>,
+    /// Leaf uses of the digests, in the implementations' order.
+    digest_uses: Vec<DigestUse>,
+}
+
+/// The part of an [`super::implementation::Implementation`] the passes
+/// read, kept densely so a cone walk does not chase the table's vectors.
+#[derive(Clone, Copy, Debug)]
+struct Digest {
+    area: f32,
+    root_per_load: f32,
+    first_use: u32,
+    uses: u32,
+}
+
+/// One leaf phase read by an implementation.
+#[derive(Clone, Copy, Debug)]
+struct DigestUse {
+    /// `2 * leaf position + complemented`.
+    code: u32,
+    /// Delay from the leaf to the output, load term excluded.
+    delay: f32,
+}
+
+/// The choice of one node phase and how often the current cover reads it.
+#[derive(Clone, Copy, Debug)]
+struct PhaseState {
+    /// `cut << 2 | candidate`, or `NONE`, `INVERT`, `FREE`.
+    choice: u32,
+    /// References by the current cover (outputs and chosen matches).
+    refs: u32,
+    /// For a match: the digest of its implementation.
+    digest: u32,
+}
+
+/// Arrival time and area flow of one node phase's choice.
+#[derive(Clone, Copy, Debug)]
+struct PhaseCost {
+    arrival: f32,
+    flow: f32,
 }
 
 #[derive(Clone, Copy)]
 struct Pick {
     choice: u32,
+    digest: u32,
     arrival: f32,
     flow: f32,
 }
@@ -73,6 +154,7 @@ struct Pick {
 impl Pick {
     const EMPTY: Pick = Pick {
         choice: NONE,
+        digest: NONE,
         arrival: f32::INFINITY,
         flow: f32::INFINITY,
     };
@@ -137,27 +219,40 @@ impl<'a> Cover<'a> {
             lib,
             table,
             cuts: CutStore::new(cut_size, n),
-            choice: vec![NONE; 2 * n],
-            arrival: vec![0.0; 2 * n],
-            flow: vec![0.0; 2 * n],
+            phases: vec![
+                PhaseState {
+                    choice: NONE,
+                    refs: 0,
+                    digest: NONE,
+                };
+                2 * n
+            ],
+            cost: vec![
+                PhaseCost {
+                    arrival: 0.0,
+                    flow: 0.0
+                };
+                2 * n
+            ],
             required: vec![f32::INFINITY; 2 * n],
-            refs: vec![0; 2 * n],
             load,
             fanout_estimate,
             inverter,
             inverter_area: table.implementation(inverter).area as f32,
+            digest_of: vec![NONE; table.implementations.len()],
+            digests: Vec::new(),
+            digest_uses: Vec::new(),
         })
     }
 
-    /// Heap bytes held by the cover (cuts included).
+    /// Peak heap bytes held by the cover: the cut store at its largest
+    /// (truth tables included, before they are released) plus the per-node
+    /// arrays.
     pub fn memory_bytes(&self) -> usize {
-        self.cuts.memory_bytes()
-            + (self.choice.capacity() + self.refs.capacity()) * 4
-            + (self.arrival.capacity()
-                + self.flow.capacity()
-                + self.required.capacity()
-                + self.load.capacity()
-                + self.fanout_estimate.capacity())
+        self.cuts.peak_memory_bytes()
+            + self.phases.capacity() * std::mem::size_of::<PhaseState>()
+            + self.cost.capacity() * std::mem::size_of::<PhaseCost>()
+            + (self.required.capacity() + self.load.capacity() + self.fanout_estimate.capacity())
                 * 4
     }
 
@@ -178,30 +273,81 @@ impl<'a> Cover<'a> {
     /// Sets the phases of a combinational input or constant.
     fn map_source(&mut self, node: usize) {
         let i = 2 * node;
-        self.choice[i] = FREE;
-        self.arrival[i] = 0.0;
-        self.flow[i] = 0.0;
+        self.phases[i].choice = FREE;
+        self.cost[i].arrival = 0.0;
+        self.cost[i].flow = 0.0;
         if node == 0 {
-            self.choice[i + 1] = FREE;
-            self.arrival[i + 1] = 0.0;
-            self.flow[i + 1] = 0.0;
+            self.phases[i + 1].choice = FREE;
+            self.cost[i + 1].arrival = 0.0;
+            self.cost[i + 1].flow = 0.0;
         } else {
-            self.choice[i + 1] = INVERT;
-            self.arrival[i + 1] = self.inverter_delay(node);
-            self.flow[i + 1] = self.inverter_area / self.fanout_estimate[node];
+            self.phases[i + 1].choice = INVERT;
+            self.cost[i + 1].arrival = self.inverter_delay(node);
+            self.cost[i + 1].flow = self.inverter_area / self.fanout_estimate[node];
         }
     }
 
+    /// The digest of table implementation `id`, made on first use.
     #[inline]
-    fn evaluate(&self, node: usize, cut: usize, imp: u32) -> (f32, f32) {
-        let leaves = self.cuts.leaves(cut);
-        let m = self.table.implementation(imp);
+    fn digest(&mut self, id: u32) -> u32 {
+        let d = self.digest_of[id as usize];
+        if d != NONE {
+            return d;
+        }
+        let m = self.table.implementation(id);
+        let d = self.digests.len() as u32;
+        self.digests.push(Digest {
+            area: m.area as f32,
+            root_per_load: m.root_per_load,
+            first_use: self.digest_uses.len() as u32,
+            uses: m.leaf_uses.len() as u32,
+        });
+        self.digest_uses
+            .extend(m.leaf_uses.iter().map(|u| DigestUse {
+                code: 2 * u.var as u32 + u.complemented as u32,
+                delay: u.delay,
+            }));
+        self.digest_of[id as usize] = d;
+        d
+    }
+
+    #[inline]
+    fn uses_of(&self, digest: &Digest) -> &[DigestUse] {
+        &self.digest_uses[digest.first_use as usize..(digest.first_use + digest.uses) as usize]
+    }
+
+    /// Arrival and area flow of `node` implemented by digest `d` over `cut`.
+    #[inline]
+    fn evaluate(&self, node: usize, cut: usize, d: u32) -> (f32, f32) {
+        self.evaluate_with(node, &self.leaf_costs(cut), d)
+    }
+
+    /// The costs of both phases of every leaf of `cut`, indexed by
+    /// `2 * leaf position + complemented`, read once for all the
+    /// implementations tried on the cut.
+    #[inline]
+    fn leaf_costs(&self, cut: usize) -> [PhaseCost; 12] {
+        let mut out = [PhaseCost {
+            arrival: 0.0,
+            flow: 0.0,
+        }; 12];
+        for (v, &l) in self.cuts.leaves(cut).iter().enumerate() {
+            out[2 * v] = self.cost[2 * l as usize];
+            out[2 * v + 1] = self.cost[2 * l as usize + 1];
+        }
+        out
+    }
+
+    /// [`Cover::evaluate`] with the leaf costs already gathered.
+    #[inline]
+    fn evaluate_with(&self, node: usize, leaf_costs: &[PhaseCost; 12], d: u32) -> (f32, f32) {
+        let m = &self.digests[d as usize];
         let mut arrival = 0f32;
-        let mut flow = m.area as f32;
-        for u in &m.leaf_uses {
-            let idx = 2 * leaves[u.var as usize] as usize + u.complemented as usize;
-            arrival = arrival.max(self.arrival[idx] + u.delay);
-            flow += self.flow[idx];
+        let mut flow = m.area;
+        for u in self.uses_of(m) {
+            let c = &leaf_costs[u.code as usize];
+            arrival = arrival.max(c.arrival + u.delay);
+            flow += c.flow;
         }
         (
             arrival + m.root_per_load * self.load[node],
@@ -213,21 +359,20 @@ impl<'a> Cover<'a> {
     fn select(&mut self, node: usize, rank: Rank) -> Result<(), MapError> {
         let mut best = [Pick::EMPTY; 2];
         let req = [self.required[2 * node], self.required[2 * node + 1]];
+        let table = self.table;
         for cut in self.cuts.cuts(node) {
             let slot = self.cuts.slot(cut);
             if slot == NO_SLOT {
                 continue;
             }
+            let leaf_costs = self.leaf_costs(cut);
             for (phase, best_phase) in best.iter_mut().enumerate() {
-                for (ci, &imp) in self
-                    .table
-                    .candidates(slot ^ phase as u32)
-                    .iter()
-                    .enumerate()
-                {
-                    let (arrival, flow) = self.evaluate(node, cut, imp);
+                for (ci, &imp) in table.candidates(slot ^ phase as u32).iter().enumerate() {
+                    let d = self.digest(imp);
+                    let (arrival, flow) = self.evaluate_with(node, &leaf_costs, d);
                     let pick = Pick {
                         choice: ((cut as u32) << 2) | ci as u32,
+                        digest: d,
                         arrival,
                         flow,
                     };
@@ -246,6 +391,7 @@ impl<'a> Cover<'a> {
             }
             let alt = Pick {
                 choice: INVERT,
+                digest: NONE,
                 arrival: other.arrival + inv_delay,
                 flow: other.flow + inv_flow,
             };
@@ -262,9 +408,10 @@ impl<'a> Cover<'a> {
             )));
         }
         for (phase, pick) in best.iter().enumerate() {
-            self.choice[2 * node + phase] = pick.choice;
-            self.arrival[2 * node + phase] = pick.arrival;
-            self.flow[2 * node + phase] = pick.flow;
+            self.phases[2 * node + phase].choice = pick.choice;
+            self.phases[2 * node + phase].digest = pick.digest;
+            self.cost[2 * node + phase].arrival = pick.arrival;
+            self.cost[2 * node + phase].flow = pick.flow;
         }
         Ok(())
     }
@@ -276,8 +423,7 @@ impl<'a> Cover<'a> {
         let net = self.net;
         for id in net.node_ids() {
             let node = id.index();
-            let arrival = &self.arrival;
-            let flow = &self.flow;
+            let cost = &self.cost;
             let fanout = &self.fanout_estimate;
             self.cuts.enumerate(
                 net,
@@ -288,8 +434,8 @@ impl<'a> Cover<'a> {
                 |l| {
                     let i = 2 * l as usize;
                     (
-                        arrival[i].min(arrival[i + 1]),
-                        flow[i].min(flow[i + 1]) * fanout[l as usize],
+                        cost[i].arrival.min(cost[i + 1].arrival),
+                        cost[i].flow.min(cost[i + 1].flow) * fanout[l as usize],
                     )
                 },
                 &mut scratch,
@@ -300,6 +446,7 @@ impl<'a> Cover<'a> {
                 self.map_source(node);
             }
         }
+        self.cuts.release_truths();
         Ok(())
     }
 
@@ -319,7 +466,7 @@ impl<'a> Cover<'a> {
     /// backwards (a phase derived by an inverter before its source).
     #[inline]
     fn backward_order(&self, node: usize) -> [usize; 2] {
-        if self.choice[2 * node + 1] == INVERT {
+        if self.phases[2 * node + 1].choice == INVERT {
             [1, 0]
         } else {
             [0, 1]
@@ -330,17 +477,17 @@ impl<'a> Cover<'a> {
     /// `node`'s `phase` reads.
     #[inline]
     fn for_each_leaf(&self, node: usize, phase: usize, mut f: impl FnMut(usize, f32)) {
-        let c = self.choice[2 * node + phase];
+        let c = self.phases[2 * node + phase].choice;
         match c {
             NONE | FREE => {}
             INVERT => f(2 * node + (1 - phase), self.inverter_delay(node)),
             _ => {
-                let imp = self.table.implementation(self.implementation_of(c, phase));
+                let m = &self.digests[self.phases[2 * node + phase].digest as usize];
                 let leaves = self.cuts.leaves((c >> 2) as usize);
-                let tail = imp.root_per_load * self.load[node];
-                for u in &imp.leaf_uses {
+                let tail = m.root_per_load * self.load[node];
+                for u in self.uses_of(m) {
                     f(
-                        2 * leaves[u.var as usize] as usize + u.complemented as usize,
+                        2 * leaves[(u.code >> 1) as usize] as usize + (u.code & 1) as usize,
                         u.delay + tail,
                     );
                 }
@@ -351,21 +498,26 @@ impl<'a> Cover<'a> {
     /// Counts references of the current cover; returns the latest output
     /// arrival.
     pub fn mark(&mut self) -> f32 {
-        self.refs.fill(0);
+        for p in &mut self.phases {
+            p.refs = 0;
+        }
         let mut worst = 0f32;
         for l in self.net.combinational_outputs() {
-            self.refs[l.raw() as usize] += 1;
-            worst = worst.max(self.arrival[l.raw() as usize]);
+            self.phases[l.raw() as usize].refs += 1;
+            worst = worst.max(self.cost[l.raw() as usize].arrival);
         }
-        let mut refs = std::mem::take(&mut self.refs);
+        let mut leaves = [0u32; 12];
         for node in (0..self.net.num_nodes()).rev() {
             for phase in self.backward_order(node) {
-                if refs[2 * node + phase] > 0 {
-                    self.for_each_leaf(node, phase, |leaf, _| refs[leaf] += 1);
+                let i = 2 * node + phase;
+                if self.phases[i].refs > 0 {
+                    let (_, count) = self.cone_step(i, &mut leaves);
+                    for &leaf in &leaves[..count] {
+                        self.phases[leaf as usize].refs += 1;
+                    }
                 }
             }
         }
-        self.refs = refs;
         worst
     }
 
@@ -382,7 +534,7 @@ impl<'a> Cover<'a> {
         for node in (0..self.net.num_nodes()).rev() {
             for phase in self.backward_order(node) {
                 let i = 2 * node + phase;
-                if self.refs[i] > 0 {
+                if self.phases[i].refs > 0 {
                     let r = required[i];
                     self.for_each_leaf(node, phase, |leaf, d| {
                         required[leaf] = required[leaf].min(r - d);
@@ -397,42 +549,60 @@ impl<'a> Cover<'a> {
     /// cover (call [`Cover::mark`] first).
     pub fn update_fanout_estimate(&mut self) {
         for node in 0..self.net.num_nodes() {
-            let r = (self.refs[2 * node] + self.refs[2 * node + 1]) as f32;
+            let r = (self.phases[2 * node].refs + self.phases[2 * node + 1].refs) as f32;
             let e = &mut self.fanout_estimate[node];
             *e = ((*e + r) / 2.0).max(1.0);
         }
     }
 
-    fn area_of(&self, phase: usize, choice: u32) -> f32 {
+    /// Area of a choice whose implementation (for a match) has digest `d`.
+    #[inline]
+    fn area_of(&self, choice: u32, d: u32) -> f32 {
         match choice {
             NONE | FREE => 0.0,
             INVERT => self.inverter_area,
+            _ => self.digests[d as usize].area,
+        }
+    }
+
+    /// Area of the choice of phase index `i` and the phase indices of the
+    /// leaves it reads (written to `out`, count returned).
+    #[inline]
+    fn cone_step(&self, i: usize, out: &mut [u32; 12]) -> (f32, usize) {
+        let state = self.phases[i];
+        match state.choice {
+            NONE | FREE => (0.0, 0),
+            INVERT => {
+                out[0] = (i ^ 1) as u32;
+                (self.inverter_area, 1)
+            }
             c => {
-                self.table
-                    .implementation(self.implementation_of(c, phase))
-                    .area as f32
+                let leaves = self.cuts.leaves((c >> 2) as usize);
+                let m = &self.digests[state.digest as usize];
+                let mut count = 0;
+                for u in self.uses_of(m) {
+                    out[count] = 2 * leaves[(u.code >> 1) as usize] + (u.code & 1);
+                    count += 1;
+                }
+                (m.area, count)
             }
         }
     }
 
     /// References the cone of `node`/`phase` under its current choice;
     /// returns the area newly referenced.
-    fn reference(&mut self, node: usize, phase: usize, stack: &mut Vec<usize>) -> f32 {
+    fn reference(&mut self, node: usize, phase: usize, stack: &mut Vec<u32>) -> f32 {
         let mut area = 0.0;
+        let mut leaves = [0u32; 12];
         stack.clear();
-        stack.push(2 * node + phase);
+        stack.push((2 * node + phase) as u32);
         while let Some(i) = stack.pop() {
-            let (n, p) = (i / 2, i % 2);
-            area += self.area_of(p, self.choice[i]);
-            let mut leaves: [usize; 12] = [0; 12];
-            let mut count = 0;
-            self.for_each_leaf_static(n, p, |leaf| {
-                leaves[count] = leaf;
-                count += 1;
-            });
+            let (a, count) = self.cone_step(i as usize, &mut leaves);
+            area += a;
             for &leaf in &leaves[..count] {
-                self.refs[leaf] += 1;
-                if self.refs[leaf] == 1 {
+                let r = &mut self.phases[leaf as usize].refs;
+                *r += 1;
+                if *r == 1 {
                     stack.push(leaf);
                 }
             }
@@ -447,32 +617,28 @@ impl<'a> Cover<'a> {
         &mut self,
         node: usize,
         phase: usize,
-        stack: &mut Vec<usize>,
-        touched: &mut Vec<usize>,
+        stack: &mut Vec<u32>,
+        touched: &mut Vec<u32>,
     ) -> f32 {
         let mut area = 0.0;
         let mut walked = 0;
+        let mut leaves = [0u32; 12];
         stack.clear();
         touched.clear();
-        stack.push(2 * node + phase);
+        stack.push((2 * node + phase) as u32);
         while let Some(i) = stack.pop() {
-            let (n, p) = (i / 2, i % 2);
             if walked >= TRIAL_LIMIT {
-                area += self.flow[i];
+                area += self.cost[i as usize].flow;
                 continue;
             }
             walked += 1;
-            area += self.area_of(p, self.choice[i]);
-            let mut leaves: [usize; 12] = [0; 12];
-            let mut count = 0;
-            self.for_each_leaf_static(n, p, |leaf| {
-                leaves[count] = leaf;
-                count += 1;
-            });
+            let (a, count) = self.cone_step(i as usize, &mut leaves);
+            area += a;
             for &leaf in &leaves[..count] {
-                self.refs[leaf] += 1;
+                let r = &mut self.phases[leaf as usize].refs;
+                *r += 1;
                 touched.push(leaf);
-                if self.refs[leaf] == 1 {
+                if *r == 1 {
                     stack.push(leaf);
                 }
             }
@@ -482,22 +648,18 @@ impl<'a> Cover<'a> {
 
     /// Releases the cone of `node`/`phase` under its current choice; returns
     /// the area released.
-    fn dereference(&mut self, node: usize, phase: usize, stack: &mut Vec<usize>) -> f32 {
+    fn dereference(&mut self, node: usize, phase: usize, stack: &mut Vec<u32>) -> f32 {
         let mut area = 0.0;
+        let mut leaves = [0u32; 12];
         stack.clear();
-        stack.push(2 * node + phase);
+        stack.push((2 * node + phase) as u32);
         while let Some(i) = stack.pop() {
-            let (n, p) = (i / 2, i % 2);
-            area += self.area_of(p, self.choice[i]);
-            let mut leaves: [usize; 12] = [0; 12];
-            let mut count = 0;
-            self.for_each_leaf_static(n, p, |leaf| {
-                leaves[count] = leaf;
-                count += 1;
-            });
+            let (a, count) = self.cone_step(i as usize, &mut leaves);
+            area += a;
             for &leaf in &leaves[..count] {
-                self.refs[leaf] -= 1;
-                if self.refs[leaf] == 0 {
+                let r = &mut self.phases[leaf as usize].refs;
+                *r -= 1;
+                if *r == 0 {
                     stack.push(leaf);
                 }
             }
@@ -505,40 +667,25 @@ impl<'a> Cover<'a> {
         area
     }
 
-    /// Like `for_each_leaf` without delays, usable while `refs` is borrowed.
-    #[inline]
-    fn for_each_leaf_static(&self, node: usize, phase: usize, mut f: impl FnMut(usize)) {
-        let c = self.choice[2 * node + phase];
-        match c {
-            NONE | FREE => {}
-            INVERT => f(2 * node + (1 - phase)),
-            _ => {
-                let imp = self.table.implementation(self.implementation_of(c, phase));
-                let leaves = self.cuts.leaves((c >> 2) as usize);
-                for u in &imp.leaf_uses {
-                    f(2 * leaves[u.var as usize] as usize + u.complemented as usize);
-                }
-            }
-        }
-    }
-
-    fn arrival_of(&self, node: usize, phase: usize, choice: u32) -> f32 {
-        self.cost_of(node, phase, choice).0
+    /// Arrival of the current choice of `node`'s `phase`.
+    fn current_arrival(&self, node: usize, phase: usize) -> f32 {
+        let state = self.phases[2 * node + phase];
+        self.cost_of(node, phase, state.choice, state.digest).0
     }
 
     /// Arrival and area flow of `choice` for `node`'s `phase`.
-    fn cost_of(&self, node: usize, phase: usize, choice: u32) -> (f32, f32) {
+    fn cost_of(&self, node: usize, phase: usize, choice: u32, d: u32) -> (f32, f32) {
         match choice {
             NONE => (f32::INFINITY, f32::INFINITY),
             FREE => (0.0, 0.0),
             INVERT => {
                 let o = 2 * node + 1 - phase;
                 (
-                    self.arrival[o] + self.inverter_delay(node),
-                    self.flow[o] + self.inverter_area / self.fanout_estimate[node],
+                    self.cost[o].arrival + self.inverter_delay(node),
+                    self.cost[o].flow + self.inverter_area / self.fanout_estimate[node],
                 )
             }
-            c => self.evaluate(node, (c >> 2) as usize, self.implementation_of(c, phase)),
+            c => self.evaluate(node, (c >> 2) as usize, d),
         }
     }
 
@@ -547,7 +694,8 @@ impl<'a> Cover<'a> {
     pub fn exact_area_pass(&mut self) {
         let mut stack = Vec::new();
         let mut touched = Vec::new();
-        let mut options: Vec<u32> = Vec::new();
+        let mut options: Vec<(u32, u32, f32, f32)> = Vec::new();
+        let table = self.table;
         for id in self.net.node_ids() {
             let node = id.index();
             if !self.net.is_gate(id) {
@@ -557,60 +705,96 @@ impl<'a> Cover<'a> {
             // current leaf costs, so a fanout that later picks it finds a
             // good cone (its exact area would need its whole unreferenced
             // cone to be walked).
-            if self.refs[2 * node] == 0 && self.refs[2 * node + 1] == 0 {
+            if self.phases[2 * node].refs == 0 && self.phases[2 * node + 1].refs == 0 {
                 if self.select(node, Rank::AreaFlow).is_err() {
                     unreachable!("a node mapped once always has a match");
                 }
                 continue;
             }
             // Real matches first, so an inverter is judged against them.
-            let order = if self.choice[2 * node] == INVERT {
+            let order = if self.phases[2 * node].choice == INVERT {
                 [1, 0]
             } else {
                 [0, 1]
             };
             for phase in order {
                 let i = 2 * node + phase;
-                let referenced = self.refs[i] > 0;
+                let referenced = self.phases[i].refs > 0;
                 if !referenced {
                     continue;
                 }
-                let current = self.choice[i];
-                if referenced {
-                    self.dereference(node, phase, &mut stack);
-                }
+                let current = self.phases[i].choice;
+                let current_digest = self.phases[i].digest;
+                let req = self.required[i];
                 options.clear();
+                let mut feasible_count = 0;
                 for cut in self.cuts.cuts(node) {
                     let slot = self.cuts.slot(cut);
                     if slot == NO_SLOT {
                         continue;
                     }
-                    for ci in 0..self.table.candidates(slot ^ phase as u32).len() {
-                        options.push(((cut as u32) << 2) | ci as u32);
+                    let leaf_costs = self.leaf_costs(cut);
+                    for (ci, &id) in table.candidates(slot ^ phase as u32).iter().enumerate() {
+                        let opt = ((cut as u32) << 2) | ci as u32;
+                        let d = self.digest(id);
+                        let (arrival, flow) = self.evaluate_with(node, &leaf_costs, d);
+                        feasible_count += (arrival <= req + EPS) as usize;
+                        options.push((opt, d, arrival, flow));
                     }
                 }
-                let other = self.choice[2 * node + 1 - phase];
+                let other = self.phases[2 * node + 1 - phase].choice;
                 if other != INVERT && other != NONE {
-                    options.push(INVERT);
+                    let (arrival, flow) = self.cost_of(node, phase, INVERT, NONE);
+                    feasible_count += (arrival <= req + EPS) as usize;
+                    options.push((INVERT, NONE, arrival, flow));
                 }
                 let mut best = current;
+                let mut best_digest = current_digest;
                 let mut best_area = f32::INFINITY;
                 let mut best_arrival = f32::INFINITY;
                 let mut best_flow = f32::INFINITY;
-                let req = self.required[i];
-                for &opt in &options {
-                    let (arrival, flow) = self.cost_of(node, phase, opt);
-                    self.choice[i] = opt;
-                    let area = self.reference_trial(node, phase, &mut stack, &mut touched);
-                    for &t in &touched {
-                        self.refs[t] -= 1;
-                    }
+                // With at most one option in time the choice needs no
+                // areas: the one in time, or else the earliest.
+                let walk = feasible_count > 1;
+                if walk {
+                    self.dereference(node, phase, &mut stack);
+                }
+                for &(opt, d, arrival, flow) in &options {
                     let feasible = arrival <= req + EPS;
                     let best_feasible = best_arrival <= req + EPS;
-                    let take = if feasible != best_feasible {
-                        feasible
-                    } else if !feasible {
-                        arrival < best_arrival - EPS
+                    // Options that cannot win are not walked: an infeasible
+                    // one is judged by arrival alone, and a feasible one
+                    // whose own cells already cost more than the best cone
+                    // cannot undercut it (a cone's area is at least its
+                    // root's).
+                    if !feasible {
+                        if !best_feasible && arrival < best_arrival - EPS {
+                            best = opt;
+                            best_digest = d;
+                            best_area = f32::INFINITY;
+                            best_arrival = arrival;
+                            best_flow = flow;
+                        }
+                        continue;
+                    }
+                    if !walk {
+                        best = opt;
+                        best_digest = d;
+                        best_arrival = arrival;
+                        best_flow = flow;
+                        continue;
+                    }
+                    if best_feasible && self.area_of(opt, d) > best_area + EPS {
+                        continue;
+                    }
+                    self.phases[i].choice = opt;
+                    self.phases[i].digest = d;
+                    let area = self.reference_trial(node, phase, &mut stack, &mut touched);
+                    for &t in &touched {
+                        self.phases[t as usize].refs -= 1;
+                    }
+                    let take = if !best_feasible {
+                        true
                     } else {
                         area < best_area - EPS
                             || (area <= best_area + EPS
@@ -619,23 +803,30 @@ impl<'a> Cover<'a> {
                     };
                     if take {
                         best = opt;
+                        best_digest = d;
                         best_area = area;
                         best_arrival = arrival;
                         best_flow = flow;
                     }
                 }
-                self.choice[i] = best;
-                if referenced {
+                if walk {
+                    self.phases[i].choice = best;
+                    self.phases[i].digest = best_digest;
+                    self.reference(node, phase, &mut stack);
+                } else if best != current {
+                    self.dereference(node, phase, &mut stack);
+                    self.phases[i].choice = best;
+                    self.phases[i].digest = best_digest;
                     self.reference(node, phase, &mut stack);
                 }
-                self.arrival[i] = best_arrival;
-                self.flow[i] = best_flow;
+                self.cost[i].arrival = best_arrival;
+                self.cost[i].flow = best_flow;
             }
             // Keep the arrival of an unreferenced or derived phase current.
             for phase in 0..2 {
                 let i = 2 * node + phase;
-                if self.refs[i] == 0 || self.choice[i] == INVERT {
-                    self.arrival[i] = self.arrival_of(node, phase, self.choice[i]);
+                if self.phases[i].refs == 0 || self.phases[i].choice == INVERT {
+                    self.cost[i].arrival = self.current_arrival(node, phase);
                 }
             }
         }
@@ -646,12 +837,24 @@ impl<'a> Cover<'a> {
         let mut area = 0.0;
         for node in 0..self.net.num_nodes() {
             for phase in 0..2 {
-                if self.refs[2 * node + phase] > 0 {
-                    area += self.area_of(phase, self.choice[2 * node + phase]) as f64;
+                if self.phases[2 * node + phase].refs > 0 {
+                    let state = self.phases[2 * node + phase];
+                    area += self.area_of(state.choice, state.digest) as f64;
                 }
             }
         }
         area
+    }
+
+    /// Builds the mapped netlist of the current cover (call [`Cover::mark`]
+    /// first), freeing the timing and area state beforehand so the netlist
+    /// does not come on top of it.
+    pub fn into_netlist(mut self) -> MappedNetlist {
+        self.cost = Vec::new();
+        self.required = Vec::new();
+        self.fanout_estimate = Vec::new();
+        self.load = Vec::new();
+        self.extract()
     }
 
     /// Builds the mapped netlist of the current cover (call [`Cover::mark`]
@@ -679,13 +882,46 @@ impl<'a> Cover<'a> {
                 reserved.insert(c);
             }
         }
-        let fresh = |prefix: &str, i: usize| {
-            let mut name = format!("{prefix}{i}");
-            while reserved.contains(name.as_str()) {
-                name.push('_');
-            }
-            name
+        // Generated names are a letter, digits and maybe underscores; when
+        // no port or storage name has that shape, none can clash and the
+        // lookups are skipped.
+        let clash_possible = reserved.iter().any(|r| {
+            let core = r.trim_end_matches('_');
+            core.len() > 1
+                && (core.starts_with('n') || core.starts_with('g'))
+                && core[1..].bytes().all(|b| b.is_ascii_digit())
+        });
+        let names = FreshNames {
+            reserved,
+            clash_possible,
         };
+        // Exact capacities: the netlist is the largest thing alive at the
+        // end of mapping, and growth by doubling would leave up to half of
+        // it unused.
+        let mut cells = 0;
+        for node in 0..net.num_nodes() {
+            if net.kind(NodeId(node as u32)) == NodeKind::Const {
+                continue;
+            }
+            for phase in 0..2 {
+                let i = 2 * node + phase;
+                if self.phases[i].refs == 0 {
+                    continue;
+                }
+                cells += match self.phases[i].choice {
+                    NONE | FREE => 0,
+                    INVERT => self.table.implementation(self.inverter).gates.len(),
+                    c => self
+                        .table
+                        .implementation(self.implementation_of(c, phase))
+                        .gates
+                        .len(),
+                };
+            }
+        }
+        out.instances.reserve_exact(cells);
+        out.nets
+            .reserve_exact(cells + net.inputs().len() + net.storage().len() + 2);
         let mut net_of = vec![NONE; 2 * net.num_nodes()];
         for (i, (name, id)) in net.inputs().iter().enumerate() {
             let n = out.add_net(name.clone(), Driver::Input(i as u32));
@@ -711,23 +947,23 @@ impl<'a> Cover<'a> {
         for node in 0..net.num_nodes() {
             if net.kind(NodeId(node as u32)) == NodeKind::Const {
                 for phase in 0..2 {
-                    if self.refs[2 * node + phase] > 0 {
+                    if self.phases[2 * node + phase].refs > 0 {
                         net_of[2 * node + phase] = constant(&mut out, phase == 1);
                     }
                 }
                 continue;
             }
-            let order = if self.choice[2 * node] == INVERT {
+            let order = if self.phases[2 * node].choice == INVERT {
                 [1, 0]
             } else {
                 [0, 1]
             };
             for phase in order {
                 let i = 2 * node + phase;
-                if self.refs[i] == 0 {
+                if self.phases[i].refs == 0 {
                     continue;
                 }
-                match self.choice[i] {
+                match self.phases[i].choice {
                     NONE | FREE => {}
                     INVERT => {
                         let src = net_of[2 * node + 1 - phase];
@@ -738,7 +974,7 @@ impl<'a> Cover<'a> {
                             &[src],
                             &mut local,
                             &mut constant,
-                            &fresh,
+                            &names,
                         );
                     }
                     c => {
@@ -755,7 +991,7 @@ impl<'a> Cover<'a> {
                             &leaf_nets,
                             &mut local,
                             &mut constant,
-                            &fresh,
+                            &names,
                         );
                     }
                 }
@@ -806,7 +1042,7 @@ impl<'a> Cover<'a> {
         leaf_nets: &[NetId],
         local: &mut Vec<NetId>,
         constant: &mut impl FnMut(&mut MappedNetlist, bool) -> NetId,
-        fresh: &impl Fn(&str, usize) -> String,
+        names: &FreshNames,
     ) -> NetId {
         let m = self.table.implementation(imp);
         local.clear();
@@ -822,10 +1058,12 @@ impl<'a> Cover<'a> {
                     Source::Constant(c) => constant(out, c),
                 })
                 .collect();
-            let name = fresh("n", out.nets.len());
+            let name = names.fresh("n", out.nets.len());
             let n = out.add_instance(gate.cell, inputs, name);
-            let idx = out.instances.len() - 1;
-            out.instances[idx].name = fresh("g", idx);
+            if names.clash_possible {
+                let idx = out.instances.len() - 1;
+                out.instances[idx].name = names.fresh("g", idx);
+            }
             local.push(n);
         }
         *local.last().expect("implementations have gates")

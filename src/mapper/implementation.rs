@@ -167,6 +167,27 @@ impl Implementation {
         })
     }
 
+    /// Area including one inverter (of area `inverter_area`) per leaf used
+    /// complemented: what the implementation costs where no complemented
+    /// leaf is available for free.
+    pub fn standalone_area(&self, inverter_area: f64) -> f64 {
+        let complemented = self.leaf_uses.iter().filter(|u| u.complemented).count();
+        self.area + inverter_area * complemented as f64
+    }
+
+    /// Area of the cheapest single cell computing `!a`, the price of a
+    /// complemented leaf (zero when the library has no inverter cell).
+    pub fn inverter_area(lib: &Library) -> f64 {
+        lib.cells
+            .iter()
+            .filter(|c| c.arity() == 1 && c.truth & 0b11 == 0b01)
+            .map(|c| c.area)
+            .fold(None, |best: Option<f64>, a| {
+                Some(best.map_or(a, |b| b.min(a)))
+            })
+            .unwrap_or(0.0)
+    }
+
     /// Worst leaf-to-output delay when the output drives `load`.
     pub fn delay(&self, load: f32) -> f32 {
         self.leaf_uses.iter().map(|u| u.delay).fold(0.0, f32::max) + self.root_per_load * load

@@ -6,7 +6,8 @@
 //! Every function is stored next to its complement: slot `s` holds the
 //! implementations of `f` and slot `s ^ 1` those of `!f`, so a cut's one slot
 //! number gives the matches of both output phases. Per function the table
-//! keeps the cheapest implementation by area and the fastest by delay.
+//! keeps the cheapest implementation by area, the cheapest with its
+//! complemented leaves paid for, and the fastest by delay.
 
 use super::implementation::{ImplGate, Implementation, Source};
 use super::small_truth::{depends_on, var};
@@ -28,6 +29,8 @@ pub struct MatchTable {
     pub typical_load: f32,
     inverter: Option<u32>,
     buffer: Option<u32>,
+    /// Area of the library's cheapest inverter cell (0 without one).
+    inverter_area: f64,
 }
 
 /// True when the variables `truth` depends on are exactly `0..m` for some m.
@@ -61,6 +64,7 @@ impl MatchTable {
             typical_load,
             inverter: None,
             buffer: None,
+            inverter_area: Implementation::inverter_area(lib),
         };
         for imp in supergate::generate(lib, typical_load) {
             table.add(imp);
@@ -144,9 +148,11 @@ impl MatchTable {
     }
 
     /// Adds an implementation (for example an optimum network from exact
-    /// synthesis). It is kept if it is the cheapest by area or the fastest by
-    /// delay for its function. Functions that are constant or whose support
-    /// is not `0..m` are ignored.
+    /// synthesis). Per function the table keeps at most three: the cheapest
+    /// by area, the cheapest by area with an inverter charged for each
+    /// complemented leaf, and the fastest by delay (ties go to the one added
+    /// first). Functions that are constant or whose support is not `0..m`
+    /// are ignored.
     pub fn add(&mut self, imp: Implementation) {
         let f = imp.function;
         if f == 0 || f == u64::MAX || !prefix_support(f) {
@@ -155,52 +161,45 @@ impl MatchTable {
         let slot = self.slot_or_insert(f);
         let id = self.implementations.len() as u32;
         let load = self.typical_load;
-        let (area, delay) = (imp.area as f32, imp.delay(load));
-        let list = &self.slots[slot as usize];
-        let mut best_area = list.first().copied();
-        let mut best_delay = list.get(1).copied().or(best_area);
-        let cost = |i: u32, imps: &Vec<Implementation>| {
-            let m = &imps[i as usize];
-            (m.area as f32, m.delay(load))
+        let inverter_area = self.inverter_area;
+        // (area, standalone area, delay) of an implementation.
+        let costs = |m: &Implementation| {
+            (
+                m.area as f32,
+                m.standalone_area(inverter_area) as f32,
+                m.delay(load),
+            )
         };
+        let mut contenders: Vec<(u32, (f32, f32, f32))> = self.slots[slot as usize]
+            .iter()
+            .map(|&i| (i, costs(&self.implementations[i as usize])))
+            .collect();
+        contenders.push((id, costs(&imp)));
         let eps = 1e-6;
-        let mut used = false;
-        match best_area {
-            Some(b) => {
-                let (ba, bd) = cost(b, &self.implementations);
-                if area < ba - eps || (area <= ba + eps && delay < bd - eps) {
-                    best_area = Some(id);
-                    used = true;
+        // The first contender that no later one beats under `better`.
+        let winner = |better: &dyn Fn(&(f32, f32, f32), &(f32, f32, f32)) -> bool| {
+            let mut best = contenders[0];
+            for c in &contenders[1..] {
+                if better(&c.1, &best.1) {
+                    best = *c;
                 }
             }
-            None => {
-                best_area = Some(id);
-                used = true;
+            best.0
+        };
+        let by_area = winner(&|a, b| a.0 < b.0 - eps || (a.0 <= b.0 + eps && a.2 < b.2 - eps));
+        let by_standalone =
+            winner(&|a, b| a.1 < b.1 - eps || (a.1 <= b.1 + eps && a.2 < b.2 - eps));
+        let by_delay = winner(&|a, b| a.2 < b.2 - eps || (a.2 <= b.2 + eps && a.0 < b.0 - eps));
+        let mut list: Vec<u32> = Vec::with_capacity(3);
+        for w in [by_area, by_standalone, by_delay] {
+            if !list.contains(&w) {
+                list.push(w);
             }
         }
-        match best_delay {
-            Some(b) => {
-                let (ba, bd) = cost(b, &self.implementations);
-                if delay < bd - eps || (delay <= bd + eps && area < ba - eps) {
-                    best_delay = Some(id);
-                    used = true;
-                }
-            }
-            None => {
-                best_delay = Some(id);
-                used = true;
-            }
-        }
-        if !used {
+        if !list.contains(&id) {
             return;
         }
         self.implementations.push(imp);
-        let mut list = vec![best_area.expect("set above")];
-        if let Some(d) = best_delay {
-            if d != list[0] {
-                list.push(d);
-            }
-        }
         self.slots[slot as usize] = list;
     }
 

@@ -13,6 +13,10 @@
 //!    and exact area within the required times, then extraction of the
 //!    netlist.
 //!
+//! With [`MapOptions::optimum`], [`optimum`] adds exact minimum networks of
+//! the cut functions of up to four leaves (from the exact-synthesis
+//! database) to a copy of the match table before step 3.
+//!
 //! Mapping is deterministic: the same network, library and options give the
 //! same netlist.
 
@@ -21,6 +25,7 @@ pub mod cover;
 pub mod cuts;
 pub mod implementation;
 pub mod matches;
+pub mod optimum;
 pub mod small_truth;
 pub mod supergate;
 
@@ -75,6 +80,9 @@ pub struct MapOptions {
     pub area_passes: usize,
     /// Rebuild AND/OR/XOR trees before covering.
     pub balance: bool,
+    /// Also match the exact minimum network of every cut function of up to
+    /// four leaves (see [`optimum`]); synthesised on first use and cached.
+    pub optimum: bool,
     /// Optimise the logic before mapping (SAT sweeping and DAG-aware cut
     /// rewriting, see [`crate::optimize`]), keeping the candidate network
     /// that maps to the least area (the network is mapped once per pass);
@@ -92,6 +100,7 @@ impl Default for MapOptions {
             delay_slack: 0.10,
             area_passes: 2,
             balance: true,
+            optimum: false,
             optimize: false,
         }
     }
@@ -121,7 +130,8 @@ pub struct MapOutcome {
     pub covered_nodes: usize,
     /// Cuts stored.
     pub cuts: usize,
-    /// Peak heap bytes of the cover state (cuts and per-node arrays).
+    /// Peak heap bytes of the cover state (the cut store at its largest and
+    /// the per-node arrays).
     pub cover_bytes: usize,
 }
 
@@ -244,13 +254,29 @@ pub fn map_detailed(
     };
     seconds.insert("balance".to_string(), t.elapsed().as_secs_f64());
 
-    let t = Instant::now();
-    let mut cover = Cover::new(subject, lib, &table, opts.cut_size)?;
     let first = if opts.goal == Goal::Area {
         Rank::AreaFlow
     } else {
         Rank::Delay
     };
+    let augmented;
+    let table: &MatchTable = if opts.optimum {
+        let t = Instant::now();
+        let mut probe = Cover::new(subject, lib, &table, opts.cut_size)?;
+        probe.enumerate_and_map(opts.cuts_per_node, first)?;
+        let functions: Vec<(u64, usize)> = (0..probe.cuts.len())
+            .map(|c| (probe.cuts.truth(c), probe.cuts.leaves(c).len()))
+            .collect();
+        drop(probe);
+        augmented = optimum::augmented_table(&table, lib, functions).0;
+        seconds.insert("optimum".to_string(), t.elapsed().as_secs_f64());
+        &augmented
+    } else {
+        &table
+    };
+
+    let t = Instant::now();
+    let mut cover = Cover::new(subject, lib, table, opts.cut_size)?;
     cover.enumerate_and_map(opts.cuts_per_node, first)?;
     seconds.insert("cuts".to_string(), t.elapsed().as_secs_f64());
 
@@ -272,7 +298,7 @@ pub fn map_detailed(
     cover.mark();
     let cover_bytes = cover.memory_bytes();
     let cuts = cover.cuts.len();
-    let netlist = cover.extract();
+    let netlist = cover.into_netlist();
     seconds.insert("cover".to_string(), t.elapsed().as_secs_f64());
     Ok(MapOutcome {
         netlist,

@@ -7,7 +7,10 @@
 //! a cell with one level-1 child (level 2), a cell with two level-1 children
 //! of at most two variables each, and a cell of at most two inputs over a
 //! level-2 child (level 3). For every function it keeps the cheapest
-//! implementation by area and the fastest by delay. The bounds keep the
+//! implementation by area, the fastest by delay, and the cheapest by area
+//! with an inverter charged for each complemented leaf (the cover decides
+//! whether a complemented leaf is free; a table that kept only the raw
+//! cheapest would map a NOR3 as an AND3 behind three inverters). The bounds keep the
 //! enumeration to a few million table evaluations, done once per library.
 //! Functions are handled as 16-bit tables during generation and handed to
 //! the match table in replicated 64-bit form.
@@ -23,33 +26,45 @@ const VAR16: [u16; 4] = [0xAAAA, 0xCCCC, 0xF0F0, 0xFF00];
 struct Best {
     area: Vec<u32>,
     delay: Vec<u32>,
+    /// Least area with an inverter charged per complemented leaf.
+    standalone: Vec<u32>,
 }
 
 struct Generator<'a> {
     lib: &'a Library,
     load: f32,
     impls: Vec<Implementation>,
-    /// Per implementation: (function, area, delay at typical load).
-    costs: Vec<(u16, f32, f32)>,
+    /// Per implementation: (function, area, delay at typical load, area
+    /// with an inverter per complemented leaf).
+    costs: Vec<(u16, f32, f32, f32)>,
     best: Best,
+    inverter_area: f64,
 }
 
 const NONE: u32 = u32::MAX;
 
 impl<'a> Generator<'a> {
-    fn better(&self, f: u16, area: f32, delay: f32) -> bool {
+    /// Whether an implementation of `f` with these costs would become one of
+    /// the kept ones (callers that have not built it yet pass its area as
+    /// `standalone`, a lower bound, so the test only prunes what cannot win).
+    fn better(&self, f: u16, area: f32, delay: f32, standalone: f32) -> bool {
         let eps = 1e-6;
         let a = self.best.area[f as usize];
         let d = self.best.delay[f as usize];
+        let s = self.best.standalone[f as usize];
         let area_better = a == NONE || {
-            let (_, ba, bd) = self.costs[a as usize];
+            let (_, ba, bd, _) = self.costs[a as usize];
             area < ba - eps || (area <= ba + eps && delay < bd - eps)
         };
         let delay_better = d == NONE || {
-            let (_, ba, bd) = self.costs[d as usize];
+            let (_, ba, bd, _) = self.costs[d as usize];
             delay < bd - eps || (delay <= bd + eps && area < ba - eps)
         };
-        area_better || delay_better
+        let standalone_better = s == NONE || {
+            let (_, _, bd, bs) = self.costs[s as usize];
+            standalone < bs - eps || (standalone <= bs + eps && delay < bd - eps)
+        };
+        area_better || delay_better || standalone_better
     }
 
     fn offer(&mut self, gates: Vec<ImplGate>) {
@@ -59,26 +74,34 @@ impl<'a> Generator<'a> {
         let f = (imp.function & 0xFFFF) as u16;
         let area = imp.area as f32;
         let delay = imp.delay(self.load);
-        if !self.better(f, area, delay) {
+        let standalone = imp.standalone_area(self.inverter_area) as f32;
+        if !self.better(f, area, delay, standalone) {
             return;
         }
         let id = self.impls.len() as u32;
         self.impls.push(imp);
-        self.costs.push((f, area, delay));
+        self.costs.push((f, area, delay, standalone));
         let eps = 1e-6;
         let a = self.best.area[f as usize];
         if a == NONE || {
-            let (_, ba, bd) = self.costs[a as usize];
+            let (_, ba, bd, _) = self.costs[a as usize];
             area < ba - eps || (area <= ba + eps && delay < bd - eps)
         } {
             self.best.area[f as usize] = id;
         }
         let d = self.best.delay[f as usize];
         if d == NONE || {
-            let (_, ba, bd) = self.costs[d as usize];
+            let (_, ba, bd, _) = self.costs[d as usize];
             delay < bd - eps || (delay <= bd + eps && area < ba - eps)
         } {
             self.best.delay[f as usize] = id;
+        }
+        let s = self.best.standalone[f as usize];
+        if s == NONE || {
+            let (_, _, bd, bs) = self.costs[s as usize];
+            standalone < bs - eps || (standalone <= bs + eps && delay < bd - eps)
+        } {
+            self.best.standalone[f as usize] = id;
         }
     }
 }
@@ -178,7 +201,9 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
         best: Best {
             area: vec![NONE; 1 << 16],
             delay: vec![NONE; 1 << 16],
+            standalone: vec![NONE; 1 << 16],
         },
+        inverter_area: Implementation::inverter_area(lib),
     };
     let atoms = atoms();
     let small_cells: Vec<usize> = (0..lib.cells.len())
@@ -203,7 +228,7 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
             }
             let area = cell.area as f32;
             let delay = (cell.delay.intrinsic + cell.delay.per_load * typical_load as f64) as f32;
-            if g.better(f, area, delay) {
+            if g.better(f, area, delay, area) {
                 g.offer(vec![ImplGate {
                     cell: c as u32,
                     inputs: t.iter().map(|&i| atoms[i].0).collect(),
@@ -267,7 +292,7 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
                             let delay = d1.max(d2)
                                 + (cell.delay.intrinsic + cell.delay.per_load * typical_load as f64)
                                     as f32;
-                            if !g.better(f, base_area, delay) {
+                            if !g.better(f, base_area, delay, base_area) {
                                 return;
                             }
                             let g1 = g.impls[c1 as usize].gates.clone();
@@ -307,10 +332,11 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
         .collect();
     compose_one_child(&mut g, &narrow, &level2, &atoms);
 
-    // Collect the survivors: best by area and by delay per function.
+    // Collect the survivors: best by area, by delay and by area with
+    // complemented leaves paid for, per function.
     let mut keep: Vec<u32> = Vec::new();
     for f in 0..(1usize << 16) {
-        for id in [g.best.area[f], g.best.delay[f]] {
+        for id in [g.best.area[f], g.best.delay[f], g.best.standalone[f]] {
             if id != NONE && !keep.contains(&id) {
                 keep.push(id);
             }
@@ -364,7 +390,7 @@ fn compose_one_child(g: &mut Generator, roots: &[usize], kids: &[u32], atoms: &[
                         };
                     }
                     let f = eval16(cell.truth, &ins[..a]);
-                    if is_atomic(f) || !g.better(f, area, delay) {
+                    if is_atomic(f) || !g.better(f, area, delay, area) {
                         return;
                     }
                     let mut gates = g.impls[child as usize].gates.clone();
