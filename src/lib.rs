@@ -12,5 +12,6 @@ pub mod library;
 pub mod mapper;
 pub mod netlist;
 pub mod network;
+pub mod optimize;
 pub mod study;
 pub mod truth;

@@ -56,10 +56,10 @@
 //! assert!(matches!(verdict, Verdict::Equivalent { outputs_checked: 1 }));
 //! ```
 
-mod classes;
+pub(crate) mod classes;
 mod exhaustive;
 mod miter;
-mod oracle;
+pub(crate) mod oracle;
 mod ports;
 mod replay;
 mod sweep;

@@ -205,13 +205,11 @@ impl OptimumDatabase {
         if let Ok(mut entries) = self.entries.write() {
             for (inputs, rep, result) in file.entries {
                 let valid = inputs <= DATABASE_MAX_INPUTS
-                    && result
-                        .as_ref()
-                        .is_none_or(|r| {
-                            r.inputs == inputs
-                                && r.is_well_formed(&self.gates)
-                                && r.simulate(&self.gates) == vec![rep]
-                        });
+                    && result.as_ref().is_none_or(|r| {
+                        r.inputs == inputs
+                            && r.is_well_formed(&self.gates)
+                            && r.simulate(&self.gates) == vec![rep]
+                    });
                 if valid {
                     entries.insert((inputs, rep), result.map(Arc::new));
                     count += 1;

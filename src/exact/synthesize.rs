@@ -645,10 +645,7 @@ impl ExactResult {
                     .is_some_and(|g| g.arity == step.fanins.len())
                     && step.fanins.iter().all(|f| operand_ok(f, i))
             })
-            && self
-                .outputs
-                .iter()
-                .all(|o| operand_ok(o, self.steps.len()))
+            && self.outputs.iter().all(|o| operand_ok(o, self.steps.len()))
     }
 
     /// Truth table of every output, computed by simulating the steps with

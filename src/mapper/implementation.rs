@@ -182,7 +182,9 @@ impl Implementation {
             .iter()
             .filter(|c| c.arity() == 1 && c.truth & 0b11 == 0b01)
             .map(|c| c.area)
-            .fold(None, |best: Option<f64>, a| Some(best.map_or(a, |b| b.min(a))))
+            .fold(None, |best: Option<f64>, a| {
+                Some(best.map_or(a, |b| b.min(a)))
+            })
             .unwrap_or(0.0)
     }
 

@@ -83,6 +83,12 @@ pub struct MapOptions {
     /// Also match the exact minimum network of every cut function of up to
     /// four leaves (see [`optimum`]); synthesised on first use and cached.
     pub optimum: bool,
+    /// Optimise the logic before mapping (SAT sweeping and DAG-aware cut
+    /// rewriting, see [`crate::optimize`]), keeping the candidate network
+    /// that maps to the least area (the network is mapped once per pass);
+    /// XOR and majority nodes are lowered to ANDs only when the library
+    /// has no such cell.
+    pub optimize: bool,
 }
 
 impl Default for MapOptions {
@@ -95,6 +101,7 @@ impl Default for MapOptions {
             area_passes: 2,
             balance: true,
             optimum: false,
+            optimize: false,
         }
     }
 }
@@ -116,7 +123,7 @@ pub struct MapOutcome {
     /// The netlist.
     pub netlist: MappedNetlist,
     /// Seconds per phase: `match` (table build, zero when cached),
-    /// `balance`, `cuts` (cut enumeration with the delay cover), `cover`
+    /// `optimize` (zero when off), `balance`, `cuts` (cut enumeration with the delay cover), `cover`
     /// (area recovery and extraction).
     pub seconds: IndexMap<String, f64>,
     /// Nodes of the network that was covered (after balancing).
@@ -215,6 +222,22 @@ pub fn map_detailed(
     }
     let keep_xor = table.has_function(var(0) ^ var(1));
     let keep_maj = table.has_function(majority(var(0), var(1), var(2)));
+    let optimized;
+    let net = if opts.optimize {
+        // Candidates are scored by the area the mapper gives them.
+        let plain = MapOptions {
+            optimize: false,
+            ..opts.clone()
+        };
+        let score = |n: &Network| map(n, lib, &plain).map_or(f64::INFINITY, |m| m.area(lib));
+        let oopts = crate::optimize::OptimizeOptions::for_library(lib);
+        optimized = crate::optimize::optimize_scored(net, &oopts, score).0;
+        &optimized
+    } else {
+        net
+    };
+    seconds.insert("optimize".to_string(), t.elapsed().as_secs_f64());
+    let t = Instant::now();
     let (and_width, xor_width) = tree_widths(lib, opts.cut_size);
     let balanced;
     let subject = if opts.balance || !keep_xor || !keep_maj {

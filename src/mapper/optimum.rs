@@ -24,8 +24,7 @@
 use super::implementation::{ImplGate, Implementation, Source};
 use super::MatchTable;
 use crate::exact::{
-    gates_from_library, ExactOptions, ExactResult, Objective, OptimumDatabase,
-    DATABASE_MAX_INPUTS,
+    gates_from_library, ExactOptions, ExactResult, Objective, OptimumDatabase, DATABASE_MAX_INPUTS,
 };
 use crate::library::Library;
 use rayon::prelude::*;
