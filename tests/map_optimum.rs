@@ -16,6 +16,7 @@
 //! they lack.
 
 use ribbonmap::exact::classes::{enumerate_classes, Transforms};
+use ribbonmap::exact::{ExactOptions, Objective};
 use ribbonmap::library::Library;
 use ribbonmap::mapper::{map, optimum, Goal, MapOptions};
 use ribbonmap::network::Network;
@@ -45,13 +46,13 @@ fn class_representatives() -> Vec<u64> {
 }
 
 fn one_output_network(truth: u64) -> Network {
-    let mut net = Network::new(&format!("class_{truth:04x}"));
+    let mut net = Network::new(format!("class_{truth:04x}"));
     let inputs: Vec<_> = ["a", "b", "c", "d"]
         .iter()
         .map(|&n| net.add_input(n).expect("fresh name"))
         .collect();
     let f = net.from_truth(truth, &inputs);
-    net.add_output("f", f);
+    net.add_output("f", f).expect("fresh output");
     net
 }
 
@@ -83,7 +84,12 @@ fn check_library_with(lib: &Library, read_seed: bool) -> Vec<String> {
         let mapped = map(&one_output_network(rep), lib, &opts).expect("maps");
         // Exhaustive simulation of the mapped netlist (16 rows).
         let got = mapped.to_network(lib).output_truth_tables();
-        assert_eq!(got, Some(vec![rep]), "{}: class 0x{rep:04x} maps wrong", lib.name);
+        assert_eq!(
+            got,
+            Some(vec![rep]),
+            "{}: class 0x{rep:04x} maps wrong",
+            lib.name
+        );
         let exact = db
             .implementation(rep, 4)
             .unwrap_or_else(|| panic!("{}: no exact network for 0x{rep:04x}", lib.name));
@@ -111,25 +117,55 @@ fn every_class_maps_to_its_minimum_on_ribbon2() {
 }
 
 /// Rebuilds the seed files: maps every class onto both libraries without
-/// reading the seed, then writes each library's whole database (every cut
-/// function the mappings met, both phases). For a cold run point the disk
-/// cache at an empty folder:
-/// `RIBBONMAP_CACHE_DIR=$(mktemp -d) cargo test --release --test map_optimum -- --ignored`.
+/// reading the seed (the mapper's database stops each SAT call after a
+/// conflict limit), proves every entry left unproven again without a limit,
+/// writes each library's whole database (every cut function the mappings
+/// met, both phases), and checks the classes once more. For a cold run
+/// point the disk cache at an empty folder:
+/// `RIBBONMAP_CACHE_DIR=$(mktemp -d) cargo test --release --test map_optimum rebuild -- --ignored`.
 #[test]
 #[ignore]
 fn rebuild_seed_files() {
     for name in ["ribbon3", "ribbon2"] {
         let lib = unit_area(name);
         let start = std::time::Instant::now();
-        let failures = check_library_with(&lib, false);
-        let db = optimum::database(&lib);
-        eprintln!(
-            "{}: {} functions synthesised or read in {:.1} s",
-            lib.name,
-            db.len(),
-            start.elapsed().as_secs_f64()
-        );
-        db.save_file(&seed_file(&lib)).expect("write the seed file");
-        assert!(failures.is_empty(), "{}:\n{}", lib.name, failures.join("\n"));
+        check_library_with(&lib, false);
+        finish_seed(&lib, start);
     }
+}
+
+/// Proves the unproven entries of the existing seed files without a
+/// conflict limit and rewrites them (`-- --ignored reprove`).
+#[test]
+#[ignore]
+fn reprove_seed_files() {
+    for name in ["ribbon3", "ribbon2"] {
+        let lib = unit_area(name);
+        let start = std::time::Instant::now();
+        optimum::database(&lib).load_file(&seed_file(&lib));
+        finish_seed(&lib, start);
+    }
+}
+
+fn finish_seed(lib: &Library, start: std::time::Instant) {
+    let db = optimum::database(lib);
+    let proven = db.reprove(&ExactOptions {
+        objective: Objective::Area,
+        ..ExactOptions::default()
+    });
+    db.save_file(&seed_file(lib)).expect("write the seed file");
+    eprintln!(
+        "{}: {} functions, {} proven without a limit, {:.1} s",
+        lib.name,
+        db.len(),
+        proven,
+        start.elapsed().as_secs_f64()
+    );
+    let failures = check_library_with(lib, true);
+    assert!(
+        failures.is_empty(),
+        "{}:\n{}",
+        lib.name,
+        failures.join("\n")
+    );
 }

@@ -136,6 +136,37 @@ impl OptimumDatabase {
         });
     }
 
+    /// Synthesises again, with `options` (typically without a conflict
+    /// limit), every stored entry that is not proven minimal, in parallel;
+    /// keeps the new result where it is proven. Returns how many entries
+    /// became proven.
+    pub fn reprove(&self, options: &ExactOptions) -> usize {
+        let pending: Vec<(usize, u64)> = match self.entries.read() {
+            Ok(e) => e
+                .iter()
+                .filter(|(_, r)| r.as_ref().is_none_or(|r| !r.optimal))
+                .map(|(&key, _)| key)
+                .collect(),
+            Err(_) => return 0,
+        };
+        let proven: Vec<((usize, u64), ExactResult)> = pending
+            .par_iter()
+            .filter_map(|&(inputs, rep)| {
+                synthesize(&[rep], inputs, &self.gates, options)
+                    .ok()
+                    .filter(|r| r.optimal)
+                    .map(|r| ((inputs, rep), r))
+            })
+            .collect();
+        let count = proven.len();
+        if let Ok(mut entries) = self.entries.write() {
+            for (key, result) in proven {
+                entries.insert(key, Some(Arc::new(result)));
+            }
+        }
+        count
+    }
+
     fn class_implementation(&self, inputs: usize, representative: u64) -> Option<Arc<ExactResult>> {
         if let Ok(entries) = self.entries.read() {
             if let Some(found) = entries.get(&(inputs, representative)) {

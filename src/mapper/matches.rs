@@ -177,7 +177,8 @@ impl MatchTable {
         contenders.push((id, costs(&imp)));
         let eps = 1e-6;
         // The first contender that no later one beats under `better`.
-        let winner = |better: &dyn Fn(&(f32, f32, f32), &(f32, f32, f32)) -> bool| {
+        type Costs = (f32, f32, f32);
+        let winner = |better: &dyn Fn(&Costs, &Costs) -> bool| {
             let mut best = contenders[0];
             for c in &contenders[1..] {
                 if better(&c.1, &best.1) {
