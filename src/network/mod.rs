@@ -116,7 +116,7 @@ pub struct Network {
     name: String,
     kinds: Vec<NodeKind>,
     fanins: Vec<[Lit; 3]>,
-    strash: FxHashMap<[u32; 3], NodeId>,
+    structural_index: FxHashMap<[u32; 3], NodeId>,
     inputs: IndexMap<String, NodeId>,
     outputs: IndexMap<String, Lit>,
     storage: IndexMap<String, Storage>,
@@ -135,7 +135,7 @@ impl Network {
             name: name.into(),
             kinds: vec![NodeKind::Const],
             fanins: vec![[Lit::FALSE; 3]],
-            strash: FxHashMap::default(),
+            structural_index: FxHashMap::default(),
             inputs: IndexMap::new(),
             outputs: IndexMap::new(),
             storage: IndexMap::new(),
@@ -146,7 +146,7 @@ impl Network {
     pub fn reserve(&mut self, additional: usize) {
         self.kinds.reserve(additional);
         self.fanins.reserve(additional);
-        self.strash.reserve(additional);
+        self.structural_index.reserve(additional);
     }
 
     /// The design name (module or model name).
@@ -334,18 +334,18 @@ impl Network {
             NodeKind::Xor => [fanins[0].raw(), fanins[1].raw(), TAG_XOR],
             _ => [fanins[0].raw(), fanins[1].raw(), fanins[2].raw()],
         };
-        if let Some(&id) = self.strash.get(&key) {
+        if let Some(&id) = self.structural_index.get(&key) {
             return id.lit();
         }
         let id = self.push(kind, fanins);
-        self.strash.insert(key, id);
+        self.structural_index.insert(key, id);
         id.lit()
     }
 
     /// Looks up an existing AND node without creating one.
     pub fn find_and(&self, a: Lit, b: Lit) -> Option<Lit> {
         let (a, b) = if a <= b { (a, b) } else { (b, a) };
-        self.strash
+        self.structural_index
             .get(&[a.raw(), b.raw(), TAG_AND])
             .map(|id| id.lit())
     }
@@ -559,7 +559,7 @@ impl Network {
     pub fn memory_bytes(&self) -> usize {
         self.kinds.capacity()
             + self.fanins.capacity() * std::mem::size_of::<[Lit; 3]>()
-            + self.strash.capacity() * (std::mem::size_of::<([u32; 3], NodeId)>() + 1)
+            + self.structural_index.capacity() * (std::mem::size_of::<([u32; 3], NodeId)>() + 1)
     }
 
     /// A copy with the same ports and storage, without dangling logic, and

@@ -20,7 +20,7 @@ fn truth_of(n: &Network, lit: Lit) -> u64 {
 }
 
 #[test]
-fn strash_stores_identical_logic_once() {
+fn structural_hashing_stores_identical_logic_once() {
     let (mut n, [a, b, c]) = three_inputs();
     let x = n.and(a, b);
     let y = n.and(b, a);

@@ -95,7 +95,7 @@ struct Graph {
     refs: Vec<u32>,
     /// Redirection of a replaced node (packed literal), or `NONE`.
     redirect: Vec<u32>,
-    strash: FxHashMap<u64, u32>,
+    structural_index: FxHashMap<u64, u32>,
     cuts: Vec<Option<Vec<Cut>>>,
 }
 
@@ -106,7 +106,7 @@ impl Graph {
             fanin: Vec::with_capacity(capacity),
             refs: Vec::with_capacity(capacity),
             redirect: Vec::with_capacity(capacity),
-            strash: FxHashMap::default(),
+            structural_index: FxHashMap::default(),
             cuts: Vec::with_capacity(capacity),
         };
         g.push(Kind::Constant, [0; 3]);
@@ -163,7 +163,7 @@ impl Graph {
     fn find_and(&self, a: u32, b: u32) -> Option<u32> {
         match Graph::simplify(self.resolve(a), self.resolve(b)) {
             Ok(l) => Some(l),
-            Err(key) => self.strash.get(&key).map(|&n| self.resolve(n << 1)),
+            Err(key) => self.structural_index.get(&key).map(|&n| self.resolve(n << 1)),
         }
     }
 
@@ -171,11 +171,11 @@ impl Graph {
         match Graph::simplify(self.resolve(a), self.resolve(b)) {
             Ok(l) => l,
             Err(key) => {
-                if let Some(&n) = self.strash.get(&key) {
+                if let Some(&n) = self.structural_index.get(&key) {
                     return self.resolve(n << 1);
                 }
                 let n = self.push(Kind::And, [(key >> 32) as u32, key as u32, 0]);
-                self.strash.insert(key, n);
+                self.structural_index.insert(key, n);
                 n << 1
             }
         }
