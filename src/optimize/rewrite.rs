@@ -163,7 +163,10 @@ impl Graph {
     fn find_and(&self, a: u32, b: u32) -> Option<u32> {
         match Graph::simplify(self.resolve(a), self.resolve(b)) {
             Ok(l) => Some(l),
-            Err(key) => self.structural_index.get(&key).map(|&n| self.resolve(n << 1)),
+            Err(key) => self
+                .structural_index
+                .get(&key)
+                .map(|&n| self.resolve(n << 1)),
         }
     }
 
