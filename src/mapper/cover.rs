@@ -827,17 +827,11 @@ impl<'a> Cover<'a> {
                             .gates
                             .len(),
                     };
-                    let take = if !best_feasible {
-                        true
-                    } else {
-                        area < best_area - EPS
-                            || (area <= best_area + EPS
-                                && (flow < best_flow - EPS
-                                    || (flow <= best_flow + EPS
-                                        && (gates < best_gates
-                                            || (gates == best_gates
-                                                && arrival < best_arrival - EPS)))))
-                    };
+                    let take = !best_feasible
+                        || preferred(
+                            (area, flow, gates, arrival),
+                            (best_area, best_flow, best_gates, best_arrival),
+                        );
                     if take {
                         best = opt;
                         best_digest = d;
@@ -1106,4 +1100,20 @@ impl<'a> Cover<'a> {
         }
         *local.last().expect("implementations have gates")
     }
+}
+
+/// Exact-area order: less area, then less area flow, then fewer cells of
+/// the implementation's own, then earlier arrival (areas, flows and
+/// arrivals compared with `EPS` tolerance).
+fn preferred(a: (f32, f32, usize, f32), b: (f32, f32, usize, f32)) -> bool {
+    if (a.0 - b.0).abs() > EPS {
+        return a.0 < b.0;
+    }
+    if (a.1 - b.1).abs() > EPS {
+        return a.1 < b.1;
+    }
+    if a.2 != b.2 {
+        return a.2 < b.2;
+    }
+    a.3 < b.3 - EPS
 }
