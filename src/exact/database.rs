@@ -136,10 +136,12 @@ impl OptimumDatabase {
         });
     }
 
-    /// Synthesises again, with `options` (typically without a conflict
-    /// limit), every stored entry that is not proven minimal, in parallel;
-    /// keeps the new result where it is proven. Returns how many entries
-    /// became proven.
+    /// Synthesises again every stored entry that is not proven minimal, in
+    /// parallel: first with the database's own options (a lower bound from
+    /// the relaxed basis is only tried when a limit stops a proof), then,
+    /// where that is not enough, with `options` (typically without a
+    /// conflict limit). Keeps a new result where it is proven, storing each
+    /// as soon as it is. Returns how many entries became proven.
     pub fn reprove(&self, options: &ExactOptions) -> usize {
         let pending: Vec<(usize, u64)> = match self.entries.read() {
             Ok(e) => e
@@ -149,22 +151,23 @@ impl OptimumDatabase {
                 .collect(),
             Err(_) => return 0,
         };
-        let proven: Vec<((usize, u64), ExactResult)> = pending
+        pending
             .par_iter()
-            .filter_map(|&(inputs, rep)| {
-                synthesize(&[rep], inputs, &self.gates, options)
-                    .ok()
-                    .filter(|r| r.optimal)
-                    .map(|r| ((inputs, rep), r))
+            .filter(|&&(inputs, rep)| {
+                let proven = [&self.options, options].into_iter().find_map(|opts| {
+                    synthesize(&[rep], inputs, &self.gates, opts)
+                        .ok()
+                        .filter(|r| r.optimal)
+                });
+                match (proven, self.entries.write()) {
+                    (Some(result), Ok(mut entries)) => {
+                        entries.insert((inputs, rep), Some(Arc::new(result)));
+                        true
+                    }
+                    _ => false,
+                }
             })
-            .collect();
-        let count = proven.len();
-        if let Ok(mut entries) = self.entries.write() {
-            for (key, result) in proven {
-                entries.insert(key, Some(Arc::new(result)));
-            }
-        }
-        count
+            .count()
     }
 
     fn class_implementation(&self, inputs: usize, representative: u64) -> Option<Arc<ExactResult>> {

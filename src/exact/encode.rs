@@ -16,7 +16,11 @@
 //! Symmetry breaking: every step is used (by a later step or an output);
 //! consecutive steps have colexicographically ordered fanin tuples, and two
 //! consecutive steps on the same tuple have strictly increasing variants (a
-//! minimal network never holds two equal steps). Optional side constraints:
+//! minimal network never holds two equal steps). With `Shape::minimal`, the
+//! stronger facts of a network no step of which can be removed: no step is a
+//! constant, equals a literal or equals another step, and an inverter never
+//! reads a step whose gate has a complemented twin (no dearer than gate and
+//! inverter together) unless that step has another user. Optional side constraints:
 //! a depth limit (order-encoded levels) and an area limit (order-encoded
 //! partial sums of integer-scaled areas).
 //!
@@ -43,6 +47,10 @@ pub(crate) struct Problem<'a> {
     pub variants: &'a [Variant],
     /// Functions to realise (distinct; normalised in normal mode).
     pub targets: Vec<u64>,
+    /// Per variant: the variant index of its complemented twin (same arity,
+    /// negated function) when the twin costs no more than the variant and an
+    /// inverter together, so an inverter on its output alone is never minimal.
+    pub absorbs_inverter: Vec<Option<usize>>,
 }
 
 /// Shape constraints of one SAT call.
@@ -54,6 +62,14 @@ pub(crate) struct Shape {
     pub depth: Option<usize>,
     /// Require every step to feed a later step or an output.
     pub all_used: bool,
+    /// Require the properties of a network from which no step can be
+    /// removed (see the module comment). Sound whenever removing a step and
+    /// redirecting its users never makes the objective worse: cells and area,
+    /// not depth.
+    pub minimal: bool,
+    /// At most this many steps may be single-input cells (inverters): a
+    /// lower bound on the multi-input cells leaves `steps - bound` of them.
+    pub max_single_input: Option<usize>,
     /// Integer cost of each variant and the largest allowed sum.
     pub area: Option<(Vec<u64>, u64)>,
 }
@@ -309,6 +325,16 @@ pub(crate) fn solve(problem: &Problem, shape: &Shape, budget: &Budget) -> Outcom
         }
     }
 
+    if let Some(cap) = shape.max_single_input {
+        add_single_input_cap(&mut cnf, &tuples, cap);
+    }
+
+    if shape.minimal {
+        add_minimality(
+            &mut cnf, problem, &x, &rows, &literals, &tuples, &gvars, &out_sel,
+        );
+    }
+
     // Colexicographic order of consecutive steps.
     for i in 0..k.saturating_sub(1) {
         for (t1, s1) in &tuples[i] {
@@ -447,6 +473,148 @@ pub(crate) fn solve(problem: &Problem, shape: &Shape, budget: &Budget) -> Outcom
     Outcome::Found(Decoded { steps, outputs })
 }
 
+/// At most `cap` steps read a single fanin (a sequential counter over one
+/// indicator per step).
+fn add_single_input_cap(cnf: &mut CnfFormula, tuples: &[Vec<(Vec<usize>, Lit)>], cap: usize) {
+    let k = tuples.len();
+    if cap >= k {
+        return;
+    }
+    let singles = |i: usize| {
+        tuples[i]
+            .iter()
+            .filter(|(t, _)| t.len() == 1)
+            .map(|(_, s)| *s)
+    };
+    if cap == 0 {
+        for i in 0..k {
+            for sel in singles(i) {
+                cnf.add_clause(&[!sel]);
+            }
+        }
+        return;
+    }
+    let used: Vec<Lit> = (0..k)
+        .map(|i| {
+            let u = cnf.new_lit();
+            for sel in singles(i) {
+                cnf.add_clause(&[!sel, u]);
+            }
+            u
+        })
+        .collect();
+    // count[i][j]: at least j + 1 of the first i + 1 steps are single-input.
+    let count: Vec<Vec<Lit>> = (0..k)
+        .map(|_| (0..cap).map(|_| cnf.new_lit()).collect())
+        .collect();
+    for i in 0..k {
+        cnf.add_clause(&[!used[i], count[i][0]]);
+        if i == 0 {
+            for &later in &count[0][1..] {
+                cnf.add_clause(&[!later]);
+            }
+            continue;
+        }
+        for j in 0..cap {
+            cnf.add_clause(&[!count[i - 1][j], count[i][j]]);
+            if j > 0 {
+                cnf.add_clause(&[!used[i], !count[i - 1][j - 1], count[i][j]]);
+            }
+        }
+        cnf.add_clause(&[!used[i], !count[i - 1][cap - 1]]);
+    }
+}
+
+/// The facts of a network from which no step can be removed (see the module
+/// comment): every step differs from the constants, from every literal and
+/// from every other step, and an inverter that could be absorbed into the
+/// complemented twin of the gate it reads is not that gate's only user.
+#[allow(clippy::too_many_arguments)]
+fn add_minimality(
+    cnf: &mut CnfFormula,
+    problem: &Problem,
+    x: &[Vec<Lit>],
+    rows: &[usize],
+    literals: &[(usize, bool)],
+    tuples: &[Vec<(Vec<usize>, Lit)>],
+    gvars: &[Vec<Lit>],
+    out_sel: &[Vec<Option<Lit>>],
+) {
+    let k = x.len();
+    let lcount = literals.len();
+    for xi in x {
+        // Not constant 0; not constant 1 (in normal mode every step is 0 on
+        // the dropped row 0 already, so all ones on the kept rows is allowed).
+        cnf.add_clause(xi);
+        if !problem.normal {
+            let ones: Vec<Lit> = xi.iter().map(|&l| !l).collect();
+            cnf.add_clause(&ones);
+        }
+        for &(input, complemented) in literals {
+            let differs: Vec<Lit> = rows
+                .iter()
+                .zip(xi)
+                .map(|(&row, &l)| {
+                    if ((row >> input) & 1 == 1) != complemented {
+                        !l
+                    } else {
+                        l
+                    }
+                })
+                .collect();
+            cnf.add_clause(&differs);
+        }
+    }
+    for i in 0..k {
+        for j in i + 1..k {
+            let mut any = Vec::with_capacity(rows.len());
+            for (&xi, &xj) in x[i].iter().zip(&x[j]) {
+                let d = cnf.new_lit();
+                cnf.add_clause(&[!d, xi, xj]);
+                cnf.add_clause(&[!d, !xi, !xj]);
+                any.push(d);
+            }
+            cnf.add_clause(&any);
+        }
+    }
+    let inverters: Vec<usize> = (0..problem.variants.len())
+        .filter(|&v| problem.variants[v].arity == 1 && problem.variants[v].truth & 0b11 == 0b01)
+        .collect();
+    if inverters.is_empty() {
+        return;
+    }
+    for i in 0..k {
+        let node = lcount + i;
+        for j in i + 1..k {
+            let Some((_, reads_i)) = tuples[j].iter().find(|(t, _)| t.as_slice() == [node]) else {
+                continue;
+            };
+            // Every other user of step i.
+            let mut others: Vec<Lit> = Vec::new();
+            for (later, list) in tuples.iter().enumerate().skip(i + 1) {
+                for (tuple, sel) in list {
+                    if tuple.contains(&node) && !(later == j && tuple.len() == 1) {
+                        others.push(*sel);
+                    }
+                }
+            }
+            // Outputs reading step i (a single output fixed on the last step
+            // has no selector, and the last step is never read by an inverter).
+            others.extend(out_sel.iter().filter_map(|sel| sel[i]));
+            for (v, twin) in problem.absorbs_inverter.iter().enumerate() {
+                if twin.is_none() {
+                    continue;
+                }
+                for &inv in &inverters {
+                    let mut clause = vec![!*reads_i, !gvars[i][v], !gvars[j][inv]];
+                    clause.extend(&others);
+                    cnf.add_clause(&clause);
+                }
+            }
+        }
+    }
+}
+
 /// Compares tuples colexicographically: largest element first.
 fn colex(a: &[usize], b: &[usize]) -> std::cmp::Ordering {
     a.iter().rev().cmp(b.iter().rev())
@@ -475,4 +643,97 @@ fn combinations(count: usize, size: usize) -> Vec<Vec<usize>> {
     }
     go(0, count, size, &mut current, &mut out);
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::exact::gates::{expand_variants, GateSpec};
+
+    /// AND2 and an inverter; `!a & !b` (NOR, 0b0001 over a, b).
+    fn and_not_problem(variants: &[Variant]) -> Problem<'_> {
+        Problem {
+            inputs: 2,
+            normal: false,
+            negated_inputs: false,
+            free_output_polarity: false,
+            variants,
+            targets: vec![0b0001],
+            absorbs_inverter: vec![None; variants.len()],
+        }
+    }
+
+    fn shape(steps: usize, cap: Option<usize>) -> Shape {
+        Shape {
+            steps,
+            depth: None,
+            all_used: true,
+            minimal: true,
+            max_single_input: cap,
+            area: None,
+        }
+    }
+
+    #[test]
+    fn single_input_cap_is_honoured() {
+        // Over AND and NOT, !a & !b needs both inputs inverted: every AND
+        // network with at most one inverter is `and(literals, !and(...))`,
+        // which is 1 on the row a = b = 1 or 0 on a row where the inverted
+        // AND is 0 (reasoning in this comment, common practice).
+        let variants = expand_variants(&[
+            GateSpec::new("and2", 2, 0x8, 1.0),
+            GateSpec::new("not", 1, 0b01, 1.0),
+        ]);
+        let problem = and_not_problem(&variants);
+        let budget = Budget::default();
+        assert!(matches!(
+            solve(&problem, &shape(3, Some(2)), &budget),
+            Outcome::Found(_)
+        ));
+        assert!(matches!(
+            solve(&problem, &shape(3, None), &budget),
+            Outcome::Found(_)
+        ));
+        for steps in 3..=6 {
+            assert!(
+                matches!(
+                    solve(&problem, &shape(steps, Some(1)), &budget),
+                    Outcome::Impossible
+                ),
+                "{steps} steps with one inverter"
+            );
+        }
+    }
+
+    #[test]
+    fn minimal_networks_hold_no_duplicate_or_constant_step() {
+        // a & b over AND alone: every AND of a, b and earlier steps is a, b
+        // or a & b (integer reasoning), so a network of two or more steps
+        // always holds a duplicate or a literal. Without the minimality facts,
+        // and(a, b) then and(a, step 0) is a two-step network.
+        let variants = expand_variants(&[GateSpec::new("and2", 2, 0x8, 1.0)]);
+        let problem = Problem {
+            targets: vec![0b1000],
+            ..and_not_problem(&variants)
+        };
+        let budget = Budget::default();
+        assert!(matches!(
+            solve(&problem, &shape(1, None), &budget),
+            Outcome::Found(_)
+        ));
+        let loose = Shape {
+            minimal: false,
+            ..shape(2, None)
+        };
+        assert!(matches!(
+            solve(&problem, &loose, &budget),
+            Outcome::Found(_)
+        ));
+        for steps in 2..=4 {
+            assert!(matches!(
+                solve(&problem, &shape(steps, None), &budget),
+                Outcome::Impossible
+            ));
+        }
+    }
 }

@@ -9,7 +9,11 @@
 //! - [`synthesize()`]: the objective loops (cells, area, depth) around the
 //!   encoding; returns an [`ExactResult`], a small netlist that can print
 //!   itself ([`ExactResult::netlist`]), simulate itself and become a
-//!   [`Network`](crate::network::Network).
+//!   [`Network`](crate::network::Network). For cells and area, a lower
+//!   bound proven over a relaxed basis (every function of the library's
+//!   arities, complements free: inverters vanish) rules out step counts and
+//!   caps how many steps may be inverters, once proofs grow large or a
+//!   limit stops one.
 //! - [`classes`]: permutation and NPN classes of small functions.
 //! - [`coverage()`]: cells needed by every function of 3 or 4 inputs.
 //! - [`cache`]: the on-disk cache keyed by the gate set's content hash.

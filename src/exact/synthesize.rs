@@ -217,12 +217,14 @@ pub fn synthesize(
             free_output_polarity: free && !normal,
             variants: &variants,
             targets,
+            absorbs_inverter: inverter_twins(&variants),
         },
         gates,
         functions,
         plans,
         budget,
         calls: 0,
+        relaxed_bound: None,
     };
     if search.problem.targets.is_empty() {
         return search.finish(None, true);
@@ -278,6 +280,8 @@ struct Search<'a> {
     plans: Vec<OutputPlan>,
     budget: Budget,
     calls: usize,
+    /// Lower bound on the steps from the relaxed basis, once computed.
+    relaxed_bound: Option<usize>,
 }
 
 impl Search<'_> {
@@ -310,22 +314,153 @@ impl Search<'_> {
         by_support.max(self.problem.targets.len())
     }
 
-    fn min_cells(&mut self, max_arity: usize, max_steps: usize) -> Result<ExactResult, ExactError> {
-        let mut proven = true;
-        for k in self.cell_lower_bound(max_arity)..=max_steps {
-            match self.call(Shape {
+    /// A lower bound on the steps of any network for the targets, proven
+    /// over a relaxed basis: every function of each arity (two and more) the
+    /// variants offer, with complements free (normal mode). A network of the
+    /// library's cells becomes one of the relaxed basis with at most as many
+    /// steps (its inverters and buffers vanish into free complements), so the
+    /// relaxed minimum bounds the library's from below. Returns the first
+    /// step count not proven impossible over the relaxed basis.
+    fn relaxed_lower_bound(&mut self, max_steps: usize) -> usize {
+        let n = self.problem.inputs;
+        let mut arities: Vec<usize> = self
+            .problem
+            .variants
+            .iter()
+            .map(|v| v.arity)
+            .filter(|&a| a >= 2)
+            .collect();
+        arities.sort_unstable();
+        arities.dedup();
+        if self.problem.normal || arities.is_empty() {
+            return 0;
+        }
+        let relaxed: Vec<Variant> = arities
+            .iter()
+            .flat_map(|&a| {
+                (0..1u64 << (1 << a))
+                    .filter(move |&t| t & 1 == 0 && (0..a).all(|p| depends_on(t, a, p)))
+                    .map(move |t| Variant {
+                        arity: a,
+                        truth: t,
+                        gate: 0,
+                        pins: (0..a).collect(),
+                        area: 1.0,
+                    })
+            })
+            .collect();
+        let mask = row_mask(n);
+        let mut targets: Vec<u64> = Vec::new();
+        for &t in &self.problem.targets {
+            let t = if t & 1 == 1 { !t & mask } else { t };
+            let literal = (0..n).any(|k| t == crate::network::exhaustive_word(k, 0) & mask);
+            if t != 0 && !literal && !targets.contains(&t) {
+                targets.push(t);
+            }
+        }
+        if targets.is_empty() {
+            return 0;
+        }
+        let widest = arities[arities.len() - 1];
+        let by_support = targets
+            .iter()
+            .map(|&t| {
+                let s = (0..n).filter(|&k| depends_on(t, n, k)).count();
+                (s.saturating_sub(1)).div_ceil(widest - 1).max(1)
+            })
+            .max()
+            .unwrap_or(1);
+        let problem = Problem {
+            inputs: n,
+            normal: true,
+            negated_inputs: false,
+            free_output_polarity: false,
+            absorbs_inverter: vec![None; relaxed.len()],
+            variants: &relaxed,
+            targets,
+        };
+        let mut k = by_support.max(problem.targets.len());
+        while k <= max_steps && !self.budget.expired() {
+            self.calls += 1;
+            let shape = Shape {
                 steps: k,
                 depth: None,
                 all_used: true,
+                minimal: true,
+                max_single_input: None,
                 area: None,
-            }) {
+            };
+            match encode::solve(&problem, &shape, &self.budget) {
+                Outcome::Impossible => k += 1,
+                Outcome::Found(_) | Outcome::Stopped => break,
+            }
+        }
+        k
+    }
+
+    /// Computes the relaxed lower bound once.
+    fn ensure_relaxed_bound(&mut self, max_steps: usize) {
+        if self.relaxed_bound.is_none() {
+            self.relaxed_bound = Some(self.relaxed_lower_bound(max_steps));
+        }
+    }
+
+    /// How many single-input steps a network of `k` steps may hold, when
+    /// the relaxed bound on its multi-input steps is known.
+    fn single_input_cap(&self, k: usize) -> Option<usize> {
+        let has_single = self.problem.variants.iter().any(|v| v.arity == 1);
+        match self.relaxed_bound {
+            Some(bound) if has_single && bound > 0 => Some(k.saturating_sub(bound)),
+            _ => None,
+        }
+    }
+
+    fn min_cells(&mut self, max_arity: usize, max_steps: usize) -> Result<ExactResult, ExactError> {
+        let mut proven = true;
+        for k in self.cell_lower_bound(max_arity)..=max_steps {
+            if k >= EAGER_RELAXATION_STEPS {
+                self.ensure_relaxed_bound(max_steps);
+            }
+            if self.relaxed_bound.is_some_and(|bound| bound > k) {
+                continue; // too few steps even over the relaxed basis
+            }
+            let mut outcome = self.call(Shape {
+                steps: k,
+                depth: None,
+                all_used: true,
+                minimal: true,
+                max_single_input: self.single_input_cap(k),
+                area: None,
+            });
+            if matches!(outcome, Outcome::Stopped)
+                && !self.budget.expired()
+                && self.relaxed_bound.is_none()
+            {
+                // The limit stopped this call: a bound from the relaxed basis
+                // may rule k out or cap its inverters, then retry once.
+                self.ensure_relaxed_bound(max_steps);
+                if self.relaxed_bound.is_some_and(|bound| bound > k) {
+                    continue;
+                }
+                if self.single_input_cap(k).is_some() {
+                    outcome = self.call(Shape {
+                        steps: k,
+                        depth: None,
+                        all_used: true,
+                        minimal: true,
+                        max_single_input: self.single_input_cap(k),
+                        area: None,
+                    });
+                }
+            }
+            match outcome {
                 Outcome::Found(d) => return self.finish(Some(d), proven),
                 Outcome::Impossible => {}
                 Outcome::Stopped => {
-                    proven = false;
                     if self.budget.expired() {
                         return Err(ExactError::LimitReached);
                     }
+                    proven = false;
                 }
             }
         }
@@ -358,6 +493,8 @@ impl Search<'_> {
                 steps: k,
                 depth: None,
                 all_used: true,
+                minimal: true,
+                max_single_input: self.single_input_cap(k),
                 area: if best == u64::MAX {
                     None
                 } else {
@@ -423,6 +560,8 @@ impl Search<'_> {
                 steps,
                 depth: Some(d),
                 all_used: false,
+                minimal: false,
+                max_single_input: None,
                 area: None,
             }) {
                 Outcome::Found(found) => {
@@ -433,6 +572,8 @@ impl Search<'_> {
                             steps: k,
                             depth: Some(d),
                             all_used: true,
+                            minimal: false,
+                            max_single_input: None,
                             area: None,
                         }) {
                             Outcome::Found(smaller) => {
@@ -588,6 +729,33 @@ fn prune(decoded: Decoded) -> Decoded {
         .map(|(s, c)| (renumber[s], c))
         .collect();
     Decoded { steps, outputs }
+}
+
+/// From this many steps on, the relaxed lower bound is computed before the
+/// first call: its few small calls are cheap next to one proof at this size
+/// (below it, only a call stopped by a limit asks for it).
+const EAGER_RELAXATION_STEPS: usize = 6;
+
+/// Per variant: its complemented twin when the twin costs no more than the
+/// variant followed by the cheapest inverter (see `Problem::absorbs_inverter`).
+fn inverter_twins(variants: &[Variant]) -> Vec<Option<usize>> {
+    let inverter_area = variants
+        .iter()
+        .filter(|v| v.arity == 1 && v.truth & 0b11 == 0b01)
+        .map(|v| v.area)
+        .fold(f64::INFINITY, f64::min);
+    variants
+        .iter()
+        .map(|v| {
+            if v.arity < 2 || !inverter_area.is_finite() {
+                return None;
+            }
+            let negated = !v.truth & row_mask(v.arity);
+            variants.iter().position(|w| {
+                w.arity == v.arity && w.truth == negated && w.area <= v.area + inverter_area + 1e-9
+            })
+        })
+        .collect()
 }
 
 /// Variant areas as integers: scaled by the smallest power of ten (up to
