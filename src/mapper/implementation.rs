@@ -194,6 +194,73 @@ impl Implementation {
     }
 }
 
+/// The costs by which the supergate generator and the match table decide
+/// which implementations of a function to keep: per function, the best under
+/// each of [`KEEP_CRITERIA`].
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct KeepCosts {
+    /// Area of the implementation's own cells.
+    pub area: f32,
+    /// Area with one inverter per complemented leaf.
+    pub standalone: f32,
+    /// Delay when the output drives the typical load.
+    pub delay: f32,
+}
+
+/// Cost differences smaller than this are ties.
+const COST_TOLERANCE: f32 = 1e-6;
+
+impl KeepCosts {
+    /// The costs of `imp` with inverters of `inverter_area`, driving `load`.
+    pub fn of(imp: &Implementation, inverter_area: f64, load: f32) -> KeepCosts {
+        KeepCosts {
+            area: imp.area as f32,
+            standalone: imp.standalone_area(inverter_area) as f32,
+            delay: imp.delay(load),
+        }
+    }
+
+    /// Costs of an implementation not built yet, whose complemented leaves
+    /// are unknown: its area stands in for the standalone area (a lower
+    /// bound, so a test against it prunes only what cannot be kept).
+    pub fn before_leaves(area: f32, delay: f32) -> KeepCosts {
+        KeepCosts {
+            area,
+            standalone: area,
+            delay,
+        }
+    }
+
+    /// Less area, or equal area and less delay.
+    pub fn cheaper(&self, other: &KeepCosts) -> bool {
+        less_then(self.area, other.area, self.delay, other.delay)
+    }
+
+    /// Less standalone area, or equal and less delay.
+    pub fn cheaper_standalone(&self, other: &KeepCosts) -> bool {
+        less_then(self.standalone, other.standalone, self.delay, other.delay)
+    }
+
+    /// Less delay, or equal delay and less area.
+    pub fn faster(&self, other: &KeepCosts) -> bool {
+        less_then(self.delay, other.delay, self.area, other.area)
+    }
+}
+
+/// `a` below `b`, or tied and `tie_a` below `tie_b`.
+fn less_then(a: f32, b: f32, tie_a: f32, tie_b: f32) -> bool {
+    a < b - COST_TOLERANCE || (a <= b + COST_TOLERANCE && tie_a < tie_b - COST_TOLERANCE)
+}
+
+/// The keep criteria: cheapest by area, cheapest with an inverter paid per
+/// complemented leaf (a table that kept only the raw cheapest would map a
+/// NOR3 as an AND3 behind three inverters), fastest.
+pub const KEEP_CRITERIA: [fn(&KeepCosts, &KeepCosts) -> bool; 3] = [
+    KeepCosts::cheaper,
+    KeepCosts::cheaper_standalone,
+    KeepCosts::faster,
+];
+
 /// The output table of a cell whose inputs carry the tables `inputs`
 /// (sum of the cell's minterms).
 #[inline]

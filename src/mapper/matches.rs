@@ -9,7 +9,7 @@
 //! keeps the cheapest implementation by area, the cheapest with its
 //! complemented leaves paid for, and the fastest by delay.
 
-use super::implementation::{ImplGate, Implementation, Source};
+use super::implementation::{ImplGate, Implementation, KeepCosts, Source, KEEP_CRITERIA};
 use super::small_truth::{depends_on, var};
 use super::supergate;
 use crate::library::Library;
@@ -162,23 +162,16 @@ impl MatchTable {
         let id = self.implementations.len() as u32;
         let load = self.typical_load;
         let inverter_area = self.inverter_area;
-        // (area, standalone area, delay) of an implementation.
-        let costs = |m: &Implementation| {
-            (
-                m.area as f32,
-                m.standalone_area(inverter_area) as f32,
-                m.delay(load),
-            )
-        };
-        let mut contenders: Vec<(u32, (f32, f32, f32))> = self.slots[slot as usize]
+        let mut contenders: Vec<(u32, KeepCosts)> = self.slots[slot as usize]
             .iter()
-            .map(|&i| (i, costs(&self.implementations[i as usize])))
+            .map(|&i| {
+                let kept = &self.implementations[i as usize];
+                (i, KeepCosts::of(kept, inverter_area, load))
+            })
             .collect();
-        contenders.push((id, costs(&imp)));
-        let eps = 1e-6;
-        // The first contender that no later one beats under `better`.
-        type Costs = (f32, f32, f32);
-        let winner = |better: &dyn Fn(&Costs, &Costs) -> bool| {
+        contenders.push((id, KeepCosts::of(&imp, inverter_area, load)));
+        // Per criterion, the first contender that no later one beats.
+        let winners = KEEP_CRITERIA.map(|better| {
             let mut best = contenders[0];
             for c in &contenders[1..] {
                 if better(&c.1, &best.1) {
@@ -186,13 +179,9 @@ impl MatchTable {
                 }
             }
             best.0
-        };
-        let by_area = winner(&|a, b| a.0 < b.0 - eps || (a.0 <= b.0 + eps && a.2 < b.2 - eps));
-        let by_standalone =
-            winner(&|a, b| a.1 < b.1 - eps || (a.1 <= b.1 + eps && a.2 < b.2 - eps));
-        let by_delay = winner(&|a, b| a.2 < b.2 - eps || (a.2 <= b.2 + eps && a.0 < b.0 - eps));
+        });
         let mut list: Vec<u32> = Vec::with_capacity(3);
-        for w in [by_area, by_standalone, by_delay] {
+        for w in winners {
             if !list.contains(&w) {
                 list.push(w);
             }

@@ -15,28 +15,26 @@
 //! Functions are handled as 16-bit tables during generation and handed to
 //! the match table in replicated 64-bit form.
 
-use super::implementation::{ImplGate, Implementation, Source};
+use super::implementation::{ImplGate, Implementation, KeepCosts, Source, KEEP_CRITERIA};
 use super::small_truth::{depends_on, replicate};
 use crate::library::Library;
 
 const VARS: usize = 4;
 const VAR16: [u16; 4] = [0xAAAA, 0xCCCC, 0xF0F0, 0xFF00];
 
-/// The best implementations found per 16-bit function.
-struct Best {
-    area: Vec<u32>,
-    delay: Vec<u32>,
-    /// Least area with an inverter charged per complemented leaf.
-    standalone: Vec<u32>,
-}
+/// Per keep criterion (in the order of [`KEEP_CRITERIA`]), the best
+/// implementation found per 16-bit function.
+type Best = [Vec<u32>; 3];
+
+/// The index of the cheapest-by-area criterion in [`Best`].
+const CHEAPEST: usize = 0;
 
 struct Generator<'a> {
     lib: &'a Library,
     load: f32,
     impls: Vec<Implementation>,
-    /// Per implementation: (function, area, delay at typical load, area
-    /// with an inverter per complemented leaf).
-    costs: Vec<(u16, f32, f32, f32)>,
+    /// Per implementation: its function and costs.
+    costs: Vec<(u16, KeepCosts)>,
     best: Best,
     inverter_area: f64,
 }
@@ -45,26 +43,12 @@ const NONE: u32 = u32::MAX;
 
 impl<'a> Generator<'a> {
     /// Whether an implementation of `f` with these costs would become one of
-    /// the kept ones (callers that have not built it yet pass its area as
-    /// `standalone`, a lower bound, so the test only prunes what cannot win).
-    fn better(&self, f: u16, area: f32, delay: f32, standalone: f32) -> bool {
-        let eps = 1e-6;
-        let a = self.best.area[f as usize];
-        let d = self.best.delay[f as usize];
-        let s = self.best.standalone[f as usize];
-        let area_better = a == NONE || {
-            let (_, ba, bd, _) = self.costs[a as usize];
-            area < ba - eps || (area <= ba + eps && delay < bd - eps)
-        };
-        let delay_better = d == NONE || {
-            let (_, ba, bd, _) = self.costs[d as usize];
-            delay < bd - eps || (delay <= bd + eps && area < ba - eps)
-        };
-        let standalone_better = s == NONE || {
-            let (_, _, bd, bs) = self.costs[s as usize];
-            standalone < bs - eps || (standalone <= bs + eps && delay < bd - eps)
-        };
-        area_better || delay_better || standalone_better
+    /// the kept ones.
+    fn better(&self, f: u16, costs: &KeepCosts) -> bool {
+        KEEP_CRITERIA.iter().zip(&self.best).any(|(better, best)| {
+            let id = best[f as usize];
+            id == NONE || better(costs, &self.costs[id as usize].1)
+        })
     }
 
     fn offer(&mut self, gates: Vec<ImplGate>) {
@@ -72,36 +56,18 @@ impl<'a> Generator<'a> {
             return;
         };
         let f = (imp.function & 0xFFFF) as u16;
-        let area = imp.area as f32;
-        let delay = imp.delay(self.load);
-        let standalone = imp.standalone_area(self.inverter_area) as f32;
-        if !self.better(f, area, delay, standalone) {
+        let costs = KeepCosts::of(&imp, self.inverter_area, self.load);
+        if !self.better(f, &costs) {
             return;
         }
         let id = self.impls.len() as u32;
         self.impls.push(imp);
-        self.costs.push((f, area, delay, standalone));
-        let eps = 1e-6;
-        let a = self.best.area[f as usize];
-        if a == NONE || {
-            let (_, ba, bd, _) = self.costs[a as usize];
-            area < ba - eps || (area <= ba + eps && delay < bd - eps)
-        } {
-            self.best.area[f as usize] = id;
-        }
-        let d = self.best.delay[f as usize];
-        if d == NONE || {
-            let (_, ba, bd, _) = self.costs[d as usize];
-            delay < bd - eps || (delay <= bd + eps && area < ba - eps)
-        } {
-            self.best.delay[f as usize] = id;
-        }
-        let s = self.best.standalone[f as usize];
-        if s == NONE || {
-            let (_, _, bd, bs) = self.costs[s as usize];
-            standalone < bs - eps || (standalone <= bs + eps && delay < bd - eps)
-        } {
-            self.best.standalone[f as usize] = id;
+        self.costs.push((f, costs));
+        for (better, best) in KEEP_CRITERIA.iter().zip(self.best.iter_mut()) {
+            let kept = best[f as usize];
+            if kept == NONE || better(&costs, &self.costs[kept as usize].1) {
+                best[f as usize] = id;
+            }
         }
     }
 }
@@ -198,11 +164,11 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
         load: typical_load,
         impls: Vec::new(),
         costs: Vec::new(),
-        best: Best {
-            area: vec![NONE; 1 << 16],
-            delay: vec![NONE; 1 << 16],
-            standalone: vec![NONE; 1 << 16],
-        },
+        best: [
+            vec![NONE; 1 << 16],
+            vec![NONE; 1 << 16],
+            vec![NONE; 1 << 16],
+        ],
         inverter_area: Implementation::inverter_area(lib),
     };
     let atoms = atoms();
@@ -228,7 +194,7 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
             }
             let area = cell.area as f32;
             let delay = (cell.delay.intrinsic + cell.delay.per_load * typical_load as f64) as f32;
-            if g.better(f, area, delay, area) {
+            if g.better(f, &KeepCosts::before_leaves(area, delay)) {
                 g.offer(vec![ImplGate {
                     cell: c as u32,
                     inputs: t.iter().map(|&i| atoms[i].0).collect(),
@@ -269,8 +235,9 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
                     for &c2 in &small {
                         let f1 = g.costs[c1 as usize].0;
                         let f2 = g.costs[c2 as usize].0;
-                        let base_area =
-                            cell.area as f32 + g.costs[c1 as usize].1 + g.costs[c2 as usize].1;
+                        let base_area = cell.area as f32
+                            + g.costs[c1 as usize].1.area
+                            + g.costs[c2 as usize].1.area;
                         for_each_tuple(rest, atoms.len(), |t| {
                             let mut k = 0;
                             for (pin, slot) in ins.iter_mut().enumerate().take(a) {
@@ -292,7 +259,7 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
                             let delay = d1.max(d2)
                                 + (cell.delay.intrinsic + cell.delay.per_load * typical_load as f64)
                                     as f32;
-                            if !g.better(f, base_area, delay, base_area) {
+                            if !g.better(f, &KeepCosts::before_leaves(base_area, delay)) {
                                 return;
                             }
                             let g1 = g.impls[c1 as usize].gates.clone();
@@ -336,7 +303,7 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
     // complemented leaves paid for, per function.
     let mut keep: Vec<u32> = Vec::new();
     for f in 0..(1usize << 16) {
-        for id in [g.best.area[f], g.best.delay[f], g.best.standalone[f]] {
+        for id in g.best.iter().map(|best| best[f]) {
             if id != NONE && !keep.contains(&id) {
                 keep.push(id);
             }
@@ -360,7 +327,7 @@ fn children(g: &Generator) -> Vec<u32> {
     (0..(1usize << 16))
         .filter(|&f| !is_atomic(f as u16))
         .filter_map(|f| {
-            let id = g.best.area[f];
+            let id = g.best[CHEAPEST][f];
             (id != NONE).then_some(id)
         })
         .collect()
@@ -376,7 +343,7 @@ fn compose_one_child(g: &mut Generator, roots: &[usize], kids: &[u32], atoms: &[
         for p in 0..a {
             for &child in kids {
                 let fc = g.costs[child as usize].0;
-                let area = cell.area as f32 + g.costs[child as usize].1;
+                let area = cell.area as f32 + g.costs[child as usize].1.area;
                 let dc = g.impls[child as usize].delay(cell.input_load as f32);
                 let delay = dc + (cell.delay.intrinsic + cell.delay.per_load * load as f64) as f32;
                 for_each_tuple(a - 1, atoms.len(), |t| {
@@ -390,7 +357,7 @@ fn compose_one_child(g: &mut Generator, roots: &[usize], kids: &[u32], atoms: &[
                         };
                     }
                     let f = eval16(cell.truth, &ins[..a]);
-                    if is_atomic(f) || !g.better(f, area, delay, area) {
+                    if is_atomic(f) || !g.better(f, &KeepCosts::before_leaves(area, delay)) {
                         return;
                     }
                     let mut gates = g.impls[child as usize].gates.clone();
