@@ -21,6 +21,7 @@
 use super::cache;
 use super::gates::{row_mask, GateSpec};
 use super::synthesize::{synthesize, ExactOptions, ExactResult, Objective, Source};
+use crate::truth::p_canon;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
@@ -100,7 +101,14 @@ impl OptimumDatabase {
         if inputs > DATABASE_MAX_INPUTS || truth & !row_mask(inputs) != 0 {
             return None;
         }
-        let (representative, perm) = smallest_permutation(truth, inputs);
+        // The class key is the numerically smallest table over all input
+        // permutations. Input `transform.perm[j]` of that table is input `j`
+        // of `truth`; `perm` is the inverse: its input `k` is `perm[k]` here.
+        let (representative, transform) = p_canon(truth, inputs);
+        let mut perm = vec![0usize; inputs];
+        for (j, &k) in transform.perm[..inputs].iter().enumerate() {
+            perm[k as usize] = j;
+        }
         let stored = self.class_implementation(inputs, representative)?;
         if perm.iter().enumerate().all(|(k, &p)| k == p) {
             return Some(stored);
@@ -273,42 +281,6 @@ impl OptimumDatabase {
                 entries,
             },
         )
-    }
-}
-
-/// The smallest table reachable from `truth` by permuting inputs, and the
-/// permutation `perm` such that input `k` of the smallest table is input
-/// `perm[k]` of `truth`.
-fn smallest_permutation(truth: u64, inputs: usize) -> (u64, Vec<usize>) {
-    let mut best = (truth, (0..inputs).collect::<Vec<_>>());
-    let mut perm: Vec<usize> = (0..inputs).collect();
-    permute_all(&mut perm, 0, &mut |p| {
-        let mut g = 0u64;
-        for r in 0..(1usize << inputs) {
-            let mut old = 0;
-            for (k, &pk) in p.iter().enumerate() {
-                if r >> k & 1 == 1 {
-                    old |= 1 << pk;
-                }
-            }
-            g |= (truth >> old & 1) << r;
-        }
-        if g < best.0 {
-            best = (g, p.to_vec());
-        }
-    });
-    best
-}
-
-fn permute_all(items: &mut Vec<usize>, start: usize, visit: &mut dyn FnMut(&[usize])) {
-    if start == items.len() {
-        visit(items);
-        return;
-    }
-    for i in start..items.len() {
-        items.swap(start, i);
-        permute_all(items, start + 1, visit);
-        items.swap(start, i);
     }
 }
 
