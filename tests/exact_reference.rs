@@ -239,12 +239,12 @@ fn two_input_with_complemented_outputs() -> Vec<GateSpec> {
 #[cfg_attr(debug_assertions, ignore)]
 fn relaxed_bound_proves_what_the_conflict_limit_cannot() {
     // 0x0116 (four inputs) needs seven cells here. The direct proof that six
-    // do not suffice takes minutes; under a conflict limit the search falls
-    // back on the relaxed basis (every two-input function, complements
-    // free), where the same function needs seven gates: that minimum is the
-    // one the full-basis search finds below, and the search behind it
-    // reproduces Knuth's four-input table (TAOCP Vol. 4A, 7.1.2, from memory
-    // via PROVENANCE.md; tests/coverage_reference.rs).
+    // do not suffice outlasts this conflict limit; before six steps the
+    // search proves a lower bound over the relaxed basis (every two-input
+    // function, complements free), where the same function needs seven
+    // gates: the minimum the full-basis search below finds, with the search
+    // that reproduces Knuth's four-input table (TAOCP Vol. 4A, 7.1.2, from
+    // memory via PROVENANCE.md; tests/coverage_reference.rs).
     let f = 0x0116;
     let opts = ExactOptions {
         conflict_limit: Some(200_000),
