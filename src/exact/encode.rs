@@ -20,9 +20,11 @@
 //! stronger facts of a network no step of which can be removed: no step is a
 //! constant or equals a literal, and an inverter never reads a step whose
 //! gate has a complemented twin (no dearer than gate and inverter together)
-//! unless that step has another user. (Requiring every two steps to differ
-//! is sound too, but its row-by-row difference variables made the hardest
-//! four-input proofs two to seven times slower, so it is left out.)
+//! unless that step has another user. In normal mode also every two steps
+//! differ; elsewhere that fact is left out, because its row-by-row
+//! difference variables made the hardest four-input proofs with inverters
+//! two to seven times slower, while in normal mode they let the relaxed
+//! lower bound (see `synthesize`) finish within the usual conflict limit.
 //! With `Shape::max_single_input`, at most that many steps are inverters.
 //! Optional side constraints: a depth limit (order-encoded levels) and an
 //! area limit (order-encoded partial sums of integer-scaled areas).
@@ -529,8 +531,8 @@ fn add_single_input_cap(cnf: &mut CnfFormula, tuples: &[Vec<(Vec<usize>, Lit)>],
 }
 
 /// The facts of a network from which no step can be removed (see the module
-/// comment): every step differs from the constants and from every literal,
-/// and an inverter that could be absorbed into the
+/// comment): every step differs from the constants and from every literal
+/// (in normal mode also from every other step), and an inverter that could be absorbed into the
 /// complemented twin of the gate it reads is not that gate's only user.
 #[allow(clippy::too_many_arguments)]
 fn add_minimality(
@@ -566,6 +568,21 @@ fn add_minimality(
                 })
                 .collect();
             cnf.add_clause(&differs);
+        }
+    }
+    if problem.normal {
+        // Every two steps differ (see the module comment for why only here).
+        for i in 0..k {
+            for j in i + 1..k {
+                let mut any = Vec::with_capacity(rows.len());
+                for (&xi, &xj) in x[i].iter().zip(&x[j]) {
+                    let d = cnf.new_lit();
+                    cnf.add_clause(&[!d, xi, xj]);
+                    cnf.add_clause(&[!d, !xi, !xj]);
+                    any.push(d);
+                }
+                cnf.add_clause(&any);
+            }
         }
     }
     let inverters: Vec<usize> = (0..problem.variants.len())

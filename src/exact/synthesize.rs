@@ -379,8 +379,14 @@ impl Search<'_> {
             variants: &relaxed,
             targets,
         };
+        // The bound is computed once per synthesis and stands in for proofs
+        // the limit would stop, so its calls may run four times as long.
+        let budget = Budget {
+            deadline: self.budget.deadline,
+            conflicts: self.budget.conflicts.map(|c| c.saturating_mul(4)),
+        };
         let mut k = by_support.max(problem.targets.len());
-        while k <= max_steps && !self.budget.expired() {
+        while k <= max_steps && !budget.expired() {
             self.calls += 1;
             let shape = Shape {
                 steps: k,
@@ -390,7 +396,7 @@ impl Search<'_> {
                 max_single_input: None,
                 area: None,
             };
-            match encode::solve(&problem, &shape, &self.budget) {
+            match encode::solve(&problem, &shape, &budget) {
                 Outcome::Impossible => k += 1,
                 Outcome::Found(_) | Outcome::Stopped => break,
             }
