@@ -20,11 +20,11 @@
 //! stronger facts of a network no step of which can be removed: no step is a
 //! constant or equals a literal, and an inverter never reads a step whose
 //! gate has a complemented twin (no dearer than gate and inverter together)
-//! unless that step has another user. In normal mode also every two steps
-//! differ; elsewhere that fact is left out, because its row-by-row
-//! difference variables made the hardest four-input proofs with inverters
-//! two to seven times slower, while in normal mode they let the relaxed
-//! lower bound (see `synthesize`) finish within the usual conflict limit.
+//! unless that step has another user. In normal mode, and when no step may be
+//! an inverter, also every two steps differ; with inverters that fact is left
+//! out, because its row-by-row difference variables made the hardest
+//! four-input proofs two to seven times slower, while without them they let
+//! more of the hardest searches finish within the usual conflict limit.
 //! With `Shape::max_single_input`, at most that many steps are inverters.
 //! Optional side constraints: a depth limit (order-encoded levels) and an
 //! area limit (order-encoded partial sums of integer-scaled areas).
@@ -335,8 +335,17 @@ pub(crate) fn solve(problem: &Problem, shape: &Shape, budget: &Budget) -> Outcom
     }
 
     if shape.minimal {
+        let all_distinct = problem.normal || shape.max_single_input == Some(0);
         add_minimality(
-            &mut cnf, problem, &x, &rows, &literals, &tuples, &gvars, &out_sel,
+            &mut cnf,
+            problem,
+            &x,
+            &rows,
+            &literals,
+            &tuples,
+            &gvars,
+            &out_sel,
+            all_distinct,
         );
     }
 
@@ -532,7 +541,7 @@ fn add_single_input_cap(cnf: &mut CnfFormula, tuples: &[Vec<(Vec<usize>, Lit)>],
 
 /// The facts of a network from which no step can be removed (see the module
 /// comment): every step differs from the constants and from every literal
-/// (in normal mode also from every other step), and an inverter that could be absorbed into the
+/// (with `all_distinct` also from every other step), and an inverter that could be absorbed into the
 /// complemented twin of the gate it reads is not that gate's only user.
 #[allow(clippy::too_many_arguments)]
 fn add_minimality(
@@ -544,6 +553,7 @@ fn add_minimality(
     tuples: &[Vec<(Vec<usize>, Lit)>],
     gvars: &[Vec<Lit>],
     out_sel: &[Vec<Option<Lit>>],
+    all_distinct: bool,
 ) {
     let k = x.len();
     let lcount = literals.len();
@@ -570,7 +580,7 @@ fn add_minimality(
             cnf.add_clause(&differs);
         }
     }
-    if problem.normal {
+    if all_distinct {
         // Every two steps differ (see the module comment for why only here).
         for i in 0..k {
             for j in i + 1..k {
