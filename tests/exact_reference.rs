@@ -220,19 +220,14 @@ fn limits_stop_the_search_honestly() {
     }
 }
 
-/// The two-input cells of a ribbon2-like library (every one costing 1) and
-/// an inverter: AND, OR and XOR with their complements, no input
-/// complements.
+/// The one- and two-input cells of `ribbon_like` (a ribbon2-like library,
+/// every cell costing 1): AND, OR and XOR with their complements and an
+/// inverter, no input complements.
 fn two_input_with_complemented_outputs() -> Vec<GateSpec> {
-    vec![
-        GateSpec::new("and2", 2, 0x8, 1.0),
-        GateSpec::new("nand2", 2, 0x7, 1.0),
-        GateSpec::new("or2", 2, 0xE, 1.0),
-        GateSpec::new("nor2", 2, 0x1, 1.0),
-        GateSpec::new("xor2", 2, 0x6, 1.0),
-        GateSpec::new("xnor2", 2, 0x9, 1.0),
-        GateSpec::new("not", 1, 0b01, 1.0),
-    ]
+    ribbon_like(false)
+        .into_iter()
+        .filter(|g| g.arity <= 2)
+        .collect()
 }
 
 #[test]

@@ -421,6 +421,18 @@ impl Search<'_> {
         }
     }
 
+    /// The shape of a fewest-cells call with `k` steps.
+    fn cells_shape(&self, k: usize) -> Shape {
+        Shape {
+            steps: k,
+            depth: None,
+            all_used: true,
+            minimal: true,
+            max_single_input: self.single_input_cap(k),
+            area: None,
+        }
+    }
+
     fn min_cells(&mut self, max_arity: usize, max_steps: usize) -> Result<ExactResult, ExactError> {
         let mut proven = true;
         for k in self.cell_lower_bound(max_arity)..=max_steps {
@@ -430,14 +442,7 @@ impl Search<'_> {
             if self.relaxed_bound.is_some_and(|bound| bound > k) {
                 continue; // too few steps even over the relaxed basis
             }
-            let mut outcome = self.call(Shape {
-                steps: k,
-                depth: None,
-                all_used: true,
-                minimal: true,
-                max_single_input: self.single_input_cap(k),
-                area: None,
-            });
+            let mut outcome = self.call(self.cells_shape(k));
             if matches!(outcome, Outcome::Stopped)
                 && !self.budget.expired()
                 && self.relaxed_bound.is_none()
@@ -449,14 +454,7 @@ impl Search<'_> {
                     continue;
                 }
                 if self.single_input_cap(k).is_some() {
-                    outcome = self.call(Shape {
-                        steps: k,
-                        depth: None,
-                        all_used: true,
-                        minimal: true,
-                        max_single_input: self.single_input_cap(k),
-                        area: None,
-                    });
+                    outcome = self.call(self.cells_shape(k));
                 }
             }
             match outcome {
