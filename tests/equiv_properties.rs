@@ -138,18 +138,26 @@ proptest! {
     }
 }
 
+/// A random network of 10 inputs, 50 gates and 3 outputs, and beside it a
+/// rewrite of it (even rounds, equivalent by construction) or an unrelated
+/// random network (odd rounds).
+fn random_pair(rng: &mut SplitMix64, round: usize) -> (Network, Network) {
+    let a = random_network(rng, 10, 50, 3);
+    let b = if round.is_multiple_of(2) {
+        rewrite(&a, rng)
+    } else {
+        random_network(rng, 10, 50, 3)
+    };
+    (a, b)
+}
+
 /// The sweep alone (random simulation with a single word, so many false
 /// candidates reach the solver) still agrees with exhaustive simulation.
 #[test]
 fn few_simulation_words_still_give_right_answers() {
     let mut rng = SplitMix64::new(7);
     for round in 0..60 {
-        let a = random_network(&mut rng, 10, 50, 3);
-        let b = if round % 2 == 0 {
-            rewrite(&a, &mut rng)
-        } else {
-            random_network(&mut rng, 10, 50, 3)
-        };
+        let (a, b) = random_pair(&mut rng, round);
         let opts = EquivOptions {
             sim_words: 1,
             enumerate_up_to: 0,
@@ -175,12 +183,7 @@ fn inconclusive_windows_fall_back_to_the_global_solver() {
     let mut rng = SplitMix64::new(11);
     let (mut window_sat, mut global_proofs) = (0, 0);
     for round in 0..80 {
-        let a = random_network(&mut rng, 10, 50, 3);
-        let b = if round % 2 == 0 {
-            rewrite(&a, &mut rng)
-        } else {
-            random_network(&mut rng, 10, 50, 3)
-        };
+        let (a, b) = random_pair(&mut rng, round);
         let opts = EquivOptions {
             sim_words: 1,
             enumerate_up_to: 0,

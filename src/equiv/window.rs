@@ -50,6 +50,7 @@ use varisat::{ExtendFormula, Lit as SatLit, Solver, Var};
 
 use super::oracle::{gate_clauses, WorkMeter, BYTES_PER_CONFLICT};
 use crate::network::{Lit, Network, NodeId, NodeKind};
+use crate::truth::table::projection;
 
 /// Conflicts a large window query may use before it gives up (a choice
 /// made here: local proofs either succeed almost at once or are not local).
@@ -66,17 +67,6 @@ pub(crate) const FIRST_WINDOW_GATES: usize = 24;
 /// simulating every frontier value (at most 64 words a node) rather than by
 /// a solver, which costs far more to set up.
 const ENUMERATE_FRONTIER_UP_TO: usize = 12;
-
-/// Truth-table words of the first six variables (bit `p` of word `k` is bit
-/// `k` of `p`).
-const TRUTH_TABLE_WORDS: [u64; 6] = [
-    0xAAAA_AAAA_AAAA_AAAA,
-    0xCCCC_CCCC_CCCC_CCCC,
-    0xF0F0_F0F0_F0F0_F0F0,
-    0xFF00_FF00_FF00_FF00,
-    0xFFFF_0000_FFFF_0000,
-    0xFFFF_FFFF_0000_0000,
-];
 
 /// Outcome of one window query.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -219,7 +209,7 @@ impl WindowProver {
             }
             for w in 0..words {
                 self.values[slot * words + w] = if k < 6 {
-                    TRUTH_TABLE_WORDS[k]
+                    projection(k)
                 } else if (w >> (k - 6)) & 1 == 1 {
                     u64::MAX
                 } else {
