@@ -59,7 +59,7 @@ fn main() {
         log_plain += (area_a / reference).ln();
         log_opt += (area_b / reference).ln();
         count += 1;
-        let opt_seconds = b.seconds.get("optimize").copied().unwrap_or(0.0);
+        let opt_seconds = b.seconds.get("restructure").copied().unwrap_or(0.0);
         let total: f64 = b.seconds.values().sum();
         println!(
             "{c:<8} {area_a:>10.0} {:>7.3} {area_b:>10.0} {:>7.3} {reference:>10.0} {opt_seconds:>9.4} {:>8.4}",

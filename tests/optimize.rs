@@ -217,7 +217,7 @@ fn map_command_optimises_on_request_and_proves_the_result() {
         (json["area"].as_f64().unwrap(), json)
     };
     let (plain, _) = run(&[]);
-    let (optimised, json) = run(&["--optimize"]);
+    let (optimised, json) = run(&["--restructure"]);
     assert!(optimised < plain, "{optimised} >= {plain}");
-    assert!(json["seconds"]["optimize"].as_f64().unwrap() > 0.0);
+    assert!(json["seconds"]["restructure"].as_f64().unwrap() > 0.0);
 }

@@ -18,7 +18,7 @@ pub struct Args {
     netlists: Vec<PathBuf>,
     /// A library (built-in name or file); repeat for each library. Ratios
     /// are relative to the first. Default: ribbon3.
-    #[arg(long = "lib", value_name = "NAME|FILE")]
+    #[arg(long = "lib", value_name = "LIB")]
     libs: Vec<String>,
     /// Mapping goal, the same for every library.
     #[arg(long, value_enum, default_value = "balanced")]
@@ -28,16 +28,16 @@ pub struct Args {
     #[arg(long, value_enum, default_value = "full")]
     verify: VerifyMode,
     /// Largest cut of the mapper.
-    #[arg(long = "cut-size", value_name = "K")]
+    #[arg(long = "cut-size", value_name = "N")]
     cut_size: Option<u32>,
     /// Priority cuts kept per node.
-    #[arg(long = "cuts-per-node", value_name = "C")]
+    #[arg(long = "cuts-per-node", value_name = "N")]
     cuts_per_node: Option<u32>,
     /// Probability that an input is 1 in the energy simulation.
     #[arg(long = "input-probability", default_value_t = 0.5, value_name = "P")]
     input_probability: f64,
     /// Random patterns simulated for energy.
-    #[arg(long, default_value_t = crate::study::power::DEFAULT_PATTERNS)]
+    #[arg(long, value_name = "N", default_value_t = crate::study::power::DEFAULT_PATTERNS)]
     patterns: u64,
     /// Table format.
     #[arg(long, value_enum, default_value = "text")]

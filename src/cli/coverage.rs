@@ -10,10 +10,10 @@ use std::collections::BTreeSet;
 #[derive(clap::Args, Debug)]
 pub struct Args {
     /// Library: a built-in name or a library file; repeat to compare.
-    #[arg(long = "lib")]
+    #[arg(long = "lib", value_name = "LIB")]
     pub libs: Vec<String>,
     /// Number of inputs of the functions tabulated (3 or 4).
-    #[arg(long, default_value_t = 4, value_parser = clap::value_parser!(u8).range(3..=4))]
+    #[arg(long, value_name = "N", default_value_t = 4, value_parser = clap::value_parser!(u8).range(3..=4))]
     pub inputs: u8,
     /// Input and output complements are free (costs then depend only on
     /// the NPN class).
@@ -21,7 +21,7 @@ pub struct Args {
     pub free_complements: bool,
     /// Stop each SAT call after about this many conflicts (the function is
     /// then counted as unproven or unsolved).
-    #[arg(long)]
+    #[arg(long, value_name = "N")]
     pub conflict_limit: Option<u64>,
     /// Recompute instead of reading the cache.
     #[arg(long)]

@@ -25,7 +25,7 @@ pub struct Args {
     pub netlist_b: PathBuf,
     /// Cell library for mapped netlists that instantiate its cells (built-in
     /// name or file; default ribbon3).
-    #[arg(long, value_name = "NAME|FILE")]
+    #[arg(long, value_name = "LIB")]
     pub lib: Option<String>,
     /// How ports are paired: `name`, `order`, or a port-map file with one
     /// `name_in_a name_in_b` pair a line (`#` comments; unlisted ports pair

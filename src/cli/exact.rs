@@ -24,10 +24,10 @@ pub struct Args {
     /// list for several outputs (0x96,0xE8 is a full adder).
     pub truth: String,
     /// Number of inputs (0 to 5).
-    #[arg(long)]
+    #[arg(long, value_name = "N")]
     pub inputs: usize,
     /// Library: a built-in name or a library file.
-    #[arg(long, default_value = "ribbon3")]
+    #[arg(long, value_name = "LIB", default_value = "ribbon3")]
     pub lib: String,
     /// What to minimise.
     #[arg(long, value_enum, default_value = "cells")]
@@ -36,13 +36,13 @@ pub struct Args {
     #[arg(long)]
     pub free_complements: bool,
     /// Stop each SAT call after about this many conflicts.
-    #[arg(long)]
+    #[arg(long, value_name = "N")]
     pub conflict_limit: Option<u64>,
     /// Stop the search after this many seconds.
-    #[arg(long)]
+    #[arg(long, value_name = "SECONDS")]
     pub time_limit: Option<f64>,
     /// Largest number of cells to try.
-    #[arg(long, default_value_t = 10)]
+    #[arg(long, value_name = "N", default_value_t = 10)]
     pub max_steps: usize,
     /// Output format: text or json.
     #[arg(long, value_enum, default_value = "text")]

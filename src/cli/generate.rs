@@ -20,20 +20,20 @@ pub struct Args {
     family: Option<String>,
     /// Width: bits per operand (mux: select bits; decoder: input bits;
     /// hamming: data bits; parity, majority, popcount: inputs).
-    #[arg(long, short = 'w')]
+    #[arg(long, short = 'w', value_name = "N")]
     width: Option<u32>,
     /// Architecture (see --list); each family has a default.
-    #[arg(long, short = 's')]
+    #[arg(long, short = 's', value_name = "STYLE")]
     style: Option<String>,
     /// Adders: add a carry input `cin`, declared last.
     #[arg(long)]
     carry_in: bool,
     /// Output file (.blif or .v); standard output when absent.
-    #[arg(long, short = 'o')]
+    #[arg(long, short = 'o', value_name = "OUT.v|OUT.blif")]
     output: Option<PathBuf>,
     /// Output format; overrides the -o extension (default BLIF on standard
     /// output).
-    #[arg(long, value_enum)]
+    #[arg(long, value_enum, value_name = "FORMAT")]
     output_format: Option<NetlistFormat>,
     /// List the families with their styles and widths, and exit.
     #[arg(long)]

@@ -21,7 +21,7 @@ pub struct Args {
     pub format: Format,
     /// Cell library (built-in name or JSON file) whose cells the netlist
     /// instantiates, for reading mapped netlists. Not needed otherwise.
-    #[arg(long, value_name = "NAME|FILE")]
+    #[arg(long, value_name = "LIB")]
     pub lib: Option<String>,
     #[command(flatten)]
     pub read: NetlistArgs,

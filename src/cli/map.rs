@@ -40,7 +40,7 @@ pub struct Args {
     /// The netlist to map (.blif, .v, .bench; `-` with --input-format).
     pub netlist: PathBuf,
     /// Cell library: a built-in name or a library file.
-    #[arg(long, value_name = "NAME|FILE", default_value = "ribbon3")]
+    #[arg(long, value_name = "LIB", default_value = "ribbon3")]
     pub lib: String,
     /// What to optimise.
     #[arg(long, value_enum, default_value = "balanced")]
@@ -52,23 +52,29 @@ pub struct Args {
     #[arg(long, value_enum, default_value = "full")]
     pub verify: VerifyArg,
     /// Largest cut (2 to 6).
-    #[arg(long, value_name = "K", default_value_t = 4)]
+    #[arg(long, value_name = "N", default_value_t = 4)]
     pub cut_size: usize,
     /// Priority cuts kept per node.
-    #[arg(long, value_name = "C", default_value_t = 8)]
+    #[arg(long, value_name = "N", default_value_t = 8)]
     pub cuts_per_node: usize,
     /// Also match provably smallest networks (exact synthesis over the
     /// library) for cut functions of up to four inputs. Each new function
     /// costs a SAT search the first time; results are cached on disk
     /// (RIBBONMAP_CACHE_DIR, else the user cache folder).
-    #[arg(long)]
-    pub optimum: bool,
+    #[arg(long = "exact-cuts")]
+    pub exact_cuts: bool,
+    /// Old name of --exact-cuts (hidden alias, kept one release).
+    #[arg(long = "optimum", hide = true)]
+    pub old_optimum: bool,
     /// Optimise the logic before mapping: SAT sweeping merges nodes that
     /// are equal up to complement and DAG-aware cut rewriting shrinks small
     /// cones; of the networks this produces, the one that maps to the
-    /// least area is mapped (the report's `optimize` phase gives the time).
+    /// least area is mapped (the report's `restructure` phase gives the time).
     #[arg(long)]
-    pub optimize: bool,
+    pub restructure: bool,
+    /// Old name of --restructure (hidden alias, kept one release).
+    #[arg(long = "optimize", hide = true)]
+    pub old_optimize: bool,
     /// Report format.
     #[arg(long, value_enum, default_value = "text")]
     pub format: Format,
@@ -79,6 +85,12 @@ pub struct Args {
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
+    if args.old_optimum {
+        eprintln!("note: --optimum is now called --exact-cuts; the old name will be removed in the next release");
+    }
+    if args.old_optimize {
+        eprintln!("note: --optimize is now called --restructure; the old name will be removed in the next release");
+    }
     let lib = load_library(&args.lib)?;
     let out_kind = match &args.output {
         None => None,
@@ -105,8 +117,8 @@ pub fn run(args: Args) -> CmdResult {
         goal,
         cut_size: args.cut_size,
         cuts_per_node: args.cuts_per_node,
-        optimum: args.optimum,
-        optimize: args.optimize,
+        optimum: args.exact_cuts || args.old_optimum,
+        optimize: args.restructure || args.old_optimize,
         ..MapOptions::default()
     };
     let outcome = map_detailed(&net, &lib, &opts).map_err(|e| match e {

@@ -35,9 +35,9 @@ mod generate;
 mod inspect;
 mod library;
 mod map;
-mod merge;
 pub mod netlist_args;
-mod sweep;
+mod study;
+mod tabulate;
 
 use clap::{Parser, Subcommand};
 use std::process::ExitCode;
@@ -106,10 +106,16 @@ enum Command {
     Coverage(coverage::Args),
     /// Map netlists on several libraries and compare the results side by side.
     Compare(compare::Args),
-    /// Run every job of a sweep plan and append the results to a file.
-    Sweep(sweep::Args),
-    /// Combine sweep result files and print comparison tables.
-    Merge(merge::Args),
+    /// Run every job of a study plan and append the results to a file.
+    Study(study::Args),
+    /// Combine study result files and print comparison tables.
+    Tabulate(tabulate::Args),
+    /// Old name of `study` (hidden alias, kept one release).
+    #[command(hide = true)]
+    Sweep(study::Args),
+    /// Old name of `tabulate` (hidden alias, kept one release).
+    #[command(hide = true)]
+    Merge(tabulate::Args),
     /// Write a parameterised benchmark circuit.
     Generate(generate::Args),
     /// List, show or check cell libraries.
@@ -148,8 +154,16 @@ pub fn main() -> ExitCode {
         Command::Exact(a) => exact::run(a),
         Command::Coverage(a) => coverage::run(a),
         Command::Compare(a) => compare::run(a),
-        Command::Sweep(a) => sweep::run(a),
-        Command::Merge(a) => merge::run(a),
+        Command::Study(a) => study::run(a),
+        Command::Tabulate(a) => tabulate::run(a),
+        Command::Sweep(a) => {
+            eprintln!("note: 'ribbonmap sweep' is now called 'ribbonmap study'; the old name will be removed in the next release");
+            study::run(a)
+        }
+        Command::Merge(a) => {
+            eprintln!("note: 'ribbonmap merge' is now called 'ribbonmap tabulate'; the old name will be removed in the next release");
+            tabulate::run(a)
+        }
         Command::Generate(a) => generate::run(a),
         Command::Library(a) => library::run(a),
     };

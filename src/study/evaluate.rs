@@ -1,6 +1,6 @@
 //! One study job: map a network on a library, check the result, measure it.
 //!
-//! [`evaluate`] is what `compare` and every `sweep` job run: technology
+//! [`evaluate`] is what `compare` and every `study` job run: technology
 //! mapping with the given goal, a check of the mapped circuit against the
 //! source (a proof with the equivalence checker, or random simulation),
 //! static timing, the switching-activity energy model, and the count of

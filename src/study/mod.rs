@@ -10,32 +10,32 @@
 //!   giving a [`StudyRecord`]; [`evaluate::compare`] runs it for every pair.
 //! - [`mapped_energy`]: the energy model applied to a mapped netlist (what
 //!   `ribbonmap map` reports as `energy_per_op` and `static_power`).
-//! - [`plan`]: sweep plans, their jobs, stable plan keys and shards.
+//! - [`plan`]: study plans, their jobs, stable plan keys and shards.
 //! - [`results`]: the append-only, crash-tolerant results file.
-//! - [`sweep`]: the parallel job engine; [`run`] drives it from a plan.
+//! - [`jobs`]: the parallel job engine; [`run`] drives it from a plan.
 //! - [`table`] and [`chart`]: comparison tables (text, Markdown, CSV, JSON,
 //!   LaTeX) and grouped bar charts (SVG) with ratios to a baseline library.
 //!
-//! `ribbonmap compare`, `sweep` and `merge` are thin wrappers over these.
+//! `ribbonmap compare`, `study` and `tabulate` are thin wrappers over these.
 
 pub mod chart;
 pub mod evaluate;
+pub mod jobs;
 pub mod mapped_energy;
 pub mod plan;
 pub mod power;
 pub mod record;
 pub mod results;
 pub mod run;
-pub mod sweep;
 pub mod table;
 
 pub use chart::render_svg;
 pub use evaluate::{compare, evaluate, EvaluateOptions};
+pub use jobs::{run_jobs, RunOptions, StudySummary};
 pub use mapped_energy::{energy_per_op, mapped_energy, static_power};
 pub use plan::{plan_key, Goal, Job, Plan, Shard, VerifyMode};
 pub use power::{EnergyReport, InputVectors, Stimulus, SwitchingCircuit};
 pub use record::{StudyError, StudyRecord};
 pub use results::{read_results, ResultsFile};
-pub use run::{run_sweep, SweepOptions};
-pub use sweep::{run_jobs, RunOptions, SweepSummary};
+pub use run::{run_study, StudyOptions};
 pub use table::{ComparisonTable, Metric, TableFormat};

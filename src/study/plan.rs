@@ -1,4 +1,4 @@
-//! Sweep plans: which benchmarks to map on which libraries with which goals.
+//! Study plans: which benchmarks to map on which libraries with which goals.
 //!
 //! A plan is a JSON file (DESIGN.md contract) naming benchmarks (file globs
 //! relative to the plan's folder, or generator specifications), libraries
@@ -187,7 +187,7 @@ pub struct PlanLibrary {
     pub load: String,
 }
 
-/// A parsed, expanded sweep plan.
+/// A parsed, expanded study plan.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Plan {
     /// The plan file.
@@ -242,7 +242,7 @@ pub fn plan_key(
     format!("{:016x}", fnv1a64(canonical.as_bytes()))
 }
 
-/// A share of a sweep: shard `index` (1-based) of `count`.
+/// A share of a study: shard `index` (1-based) of `count`.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct Shard {
     /// 1-based shard number.

@@ -1,7 +1,7 @@
 //! One study result: a benchmark mapped on a library with a goal.
 //!
 //! A [`StudyRecord`] carries every number the tables and charts need and is
-//! also the line format of sweep result files: it serialises to the `map`
+//! also the line format of study result files: it serialises to the `map`
 //! report fields (DESIGN.md contract: `design`, `library`, `goal`, `cells`,
 //! `cell_count`, `area`, `depth`, `delay`, `devices`, `verified`, `seconds`)
 //! plus `benchmark`, `plan_key` and the energy figures. Fields this crate
@@ -41,7 +41,7 @@ pub struct StudyRecord {
     pub library: String,
     /// Mapping goal (`area`, `delay` or `balanced`).
     pub goal: String,
-    /// Stable key of the sweep job, when the record came from a sweep.
+    /// Stable key of the study job, when the record came from a study run.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub plan_key: Option<String>,
     /// Cell name to instance count.

@@ -1,6 +1,6 @@
 //! Result files: one JSON object per line, appended as jobs finish.
 //!
-//! A sweep must survive being killed at any moment and lose no finished job.
+//! A study run must survive being killed at any moment and lose no finished job.
 //! So the file is opened in append mode and each result is written as one
 //! complete line (text and newline in a single `write` call, then synced);
 //! a kill can at worst leave one unterminated last line. [`ResultsFile::open`]
@@ -184,8 +184,8 @@ pub fn read_results(paths: &[PathBuf]) -> Result<MergedResults, SourceError> {
     Ok(merged)
 }
 
-/// Puts sweep records back in plan order (benchmark, library, goal as the
-/// plan lists them; a sweep writes them in completion order), so tables show
+/// Puts study records back in plan order (benchmark, library, goal as the
+/// plan lists them; a study run writes them in completion order), so tables show
 /// libraries in plan order with the plan's first library as baseline.
 /// Records without a `plan_position` keep their order, after the others.
 pub fn sort_by_plan_position(records: &mut [StudyRecord]) {

@@ -1,25 +1,25 @@
-//! Running a sweep plan end to end: load its libraries and benchmarks, then
+//! Running a study plan end to end: load its libraries and benchmarks, then
 //! evaluate every job of the chosen shard into the results file.
 //!
 //! Inputs are loaded before any job runs, so a bad plan, netlist or library
-//! stops the sweep at once (exit 2) instead of after hours of work; only the
+//! stops the study run at once (exit 2) instead of after hours of work; only the
 //! benchmarks the shard still needs are read.
 
 use super::evaluate::{evaluate, EvaluateOptions};
+use super::jobs::{run_jobs, RunOptions, StudySummary};
 use super::plan::{BenchmarkSource, Plan, Shard, VerifyMode};
 use super::power::{Stimulus, DEFAULT_PATTERNS};
 use super::record::StudyError;
 use super::results::ResultsFile;
-use super::sweep::{run_jobs, RunOptions, SweepSummary};
 use crate::generate::{generate, Family, Params};
 use crate::library::Library;
 use crate::network::Network;
 use std::collections::{BTreeMap, HashMap};
 use std::path::Path;
 
-/// Options of [`run_sweep`].
+/// Options of [`run_study`].
 #[derive(Clone, Debug, Default)]
-pub struct SweepOptions {
+pub struct StudyOptions {
     /// Run only this share of the jobs.
     pub shard: Option<Shard>,
     /// Worker threads and progress display.
@@ -110,11 +110,11 @@ pub fn plan_evaluate_options(plan: &Plan, goal: super::plan::Goal) -> EvaluateOp
 /// Runs the plan's jobs (or one shard of them) not yet in `results`,
 /// appending one line per finished job. Returns what was done; failed jobs
 /// are listed in the summary and not written.
-pub fn run_sweep(
+pub fn run_study(
     plan: &Plan,
     results_path: &Path,
-    options: &SweepOptions,
-) -> Result<SweepSummary, StudyError> {
+    options: &StudyOptions,
+) -> Result<StudySummary, StudyError> {
     let jobs = plan.shard_jobs(options.shard);
     let (results, existing) = ResultsFile::open(results_path)?;
     if existing.repaired_bytes > 0 {

@@ -136,7 +136,7 @@ impl ComparisonTable {
                 groups.push((r.benchmark.clone(), r.goal.clone()));
             }
         }
-        // Sweep records know their library's place in the plan: use it, so
+        // Study records know their library's place in the plan: use it, so
         // merged shards list libraries (and pick the baseline) as the plan
         // does.
         let plan_index = |lib: &str| -> u64 {

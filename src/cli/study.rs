@@ -1,14 +1,14 @@
-//! `ribbonmap sweep`: run every job of a plan (or one shard of them) and
+//! `ribbonmap study`: run every job of a plan (or one shard of them) and
 //! append one result line per finished job, resuming where a previous run
 //! stopped.
 
 use super::compare::cli_error;
 use super::{CliError, CmdResult, EXIT_OK};
-use crate::study::run::{run_sweep, SweepOptions};
+use crate::study::run::{run_study, StudyOptions};
 use crate::study::{Plan, RunOptions, Shard, StudyError};
 use std::path::PathBuf;
 
-/// Arguments of `ribbonmap sweep`.
+/// Arguments of `ribbonmap study`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
     /// The plan file (JSON: benchmarks, libraries, goals, options).
@@ -35,16 +35,16 @@ pub struct Args {
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
     let plan = Plan::load(&args.plan)?;
-    let options = SweepOptions {
+    let options = StudyOptions {
         shard: args.shard,
         run: RunOptions {
             threads: args.jobs,
             progress: true,
         },
     };
-    let summary = run_sweep(&plan, &args.output, &options).map_err(cli_error)?;
+    let summary = run_study(&plan, &args.output, &options).map_err(cli_error)?;
     eprintln!(
-        "sweep: {} jobs{}, {} already in {}, {} done, {} failed",
+        "study: {} jobs{}, {} already in {}, {} done, {} failed",
         summary.jobs,
         match args.shard {
             Some(s) => format!(" in shard {}/{}", s.index, s.count),

@@ -1,6 +1,6 @@
 //! Running many study jobs in parallel into a resumable results file.
 //!
-//! [`run_jobs`] is the engine behind `ribbonmap sweep`: it skips jobs whose
+//! [`run_jobs`] is the engine behind `ribbonmap study`: it skips jobs whose
 //! plan key is already in the results file, runs the rest on a rayon thread
 //! pool, appends each finished result as one line the moment it is ready,
 //! and shows a progress bar on standard error only when that is a terminal.
@@ -23,9 +23,9 @@ pub struct RunOptions {
     pub progress: bool,
 }
 
-/// What a sweep did.
+/// What a study run did.
 #[derive(Clone, Debug, Default, PartialEq)]
-pub struct SweepSummary {
+pub struct StudySummary {
     /// Jobs in the plan (or shard).
     pub jobs: usize,
     /// Jobs skipped because their result was already in the file.
@@ -39,7 +39,7 @@ pub struct SweepSummary {
 /// Runs `jobs` not yet in `existing` with `run_one`, appending each result to
 /// `results` as soon as it is ready. A failing job is recorded in the
 /// summary and not written, so a later run retries it; the other jobs go on.
-/// An error writing the results file stops the sweep.
+/// An error writing the results file stops the study run.
 pub fn run_jobs<F>(
     jobs: &[Job],
     existing: &HashSet<String>,
@@ -47,7 +47,7 @@ pub fn run_jobs<F>(
     options: &RunOptions,
     label: impl Fn(&Job) -> String + Sync,
     run_one: F,
-) -> Result<SweepSummary, StudyError>
+) -> Result<StudySummary, StudyError>
 where
     F: Fn(&Job) -> Result<StudyRecord, StudyError> + Sync,
 {
@@ -56,7 +56,7 @@ where
         .iter()
         .filter(|j| !existing.contains(&j.plan_key))
         .collect();
-    let mut summary = SweepSummary {
+    let mut summary = StudySummary {
         jobs: jobs.len(),
         skipped: jobs.len() - todo.len(),
         ..Default::default()

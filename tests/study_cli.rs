@@ -1,4 +1,4 @@
-//! `ribbonmap sweep` and `merge`: resumption after a kill, repair of a
+//! `ribbonmap study` and `tabulate`: resumption after a kill, repair of a
 //! half-written last line, shards that partition the plan and agree with an
 //! unsharded run, located plan errors.
 //!
@@ -44,10 +44,10 @@ fn setup() -> (tempfile::TempDir, PathBuf) {
     (dir, plan)
 }
 
-fn sweep(plan: &Path, output: &Path, extra: &[&str]) -> std::process::Output {
+fn study(plan: &Path, output: &Path, extra: &[&str]) -> std::process::Output {
     Command::cargo_bin("ribbonmap")
         .unwrap()
-        .arg("sweep")
+        .arg("study")
         .arg(plan)
         .arg("-o")
         .arg(output)
@@ -70,7 +70,7 @@ fn lines_by_key(path: &Path) -> (usize, BTreeMap<String, serde_json::Value>) {
     (count, map)
 }
 
-/// The numbers that must not depend on how the sweep was split.
+/// The numbers that must not depend on how the study was split.
 fn numbers(v: &serde_json::Value) -> String {
     format!(
         "{} {} {} {} {} {} {} {} {}",
@@ -90,7 +90,7 @@ fn numbers(v: &serde_json::Value) -> String {
 fn shards_partition_the_plan_and_agree_with_one_run() {
     let (dir, plan) = setup();
     let all = dir.path().join("all.jsonl");
-    let out = sweep(&plan, &all, &["--jobs", "2"]);
+    let out = study(&plan, &all, &["--jobs", "2"]);
     assert!(
         out.status.success(),
         "{}",
@@ -115,7 +115,7 @@ fn shards_partition_the_plan_and_agree_with_one_run() {
     let mut shard_files = Vec::new();
     for i in 1..=3 {
         let path = dir.path().join(format!("shard-{i}.jsonl"));
-        let out = sweep(&plan, &path, &["--shard", &format!("{i}/3"), "--jobs", "1"]);
+        let out = study(&plan, &path, &["--shard", &format!("{i}/3"), "--jobs", "1"]);
         assert!(
             out.status.success(),
             "{}",
@@ -138,10 +138,10 @@ fn shards_partition_the_plan_and_agree_with_one_run() {
         assert_eq!(numbers(v), numbers(&whole[k]), "job {k}");
     }
 
-    // merge drops the duplicates between the shards and the full run.
+    // tabulate drops the duplicates between the shards and the full run.
     let out = Command::cargo_bin("ribbonmap")
         .unwrap()
-        .arg("merge")
+        .arg("tabulate")
         .args(&shard_files)
         .arg(&all)
         .args(["--format", "json"])
@@ -158,12 +158,12 @@ fn shards_partition_the_plan_and_agree_with_one_run() {
 }
 
 #[test]
-fn a_killed_sweep_resumes_with_every_result_exactly_once() {
+fn a_killed_study_resumes_with_every_result_exactly_once() {
     let (dir, plan) = setup();
     let results = dir.path().join("results.jsonl");
     let exe = assert_cmd::cargo::cargo_bin("ribbonmap");
     let mut child = std::process::Command::new(&exe)
-        .arg("sweep")
+        .arg("study")
         .arg(&plan)
         .arg("-o")
         .arg(&results)
@@ -200,10 +200,10 @@ fn a_killed_sweep_resumes_with_every_result_exactly_once() {
     std::io::Write::write_all(&mut f, &first.as_bytes()[..first.len() / 2]).unwrap();
     drop(f);
 
-    // merge tolerates the unfinished line.
+    // tabulate tolerates the unfinished line.
     let out = Command::cargo_bin("ribbonmap")
         .unwrap()
-        .args(["merge", "--format", "csv"])
+        .args(["tabulate", "--format", "csv"])
         .arg(&results)
         .output()
         .unwrap();
@@ -213,7 +213,7 @@ fn a_killed_sweep_resumes_with_every_result_exactly_once() {
         String::from_utf8_lossy(&out.stderr)
     );
 
-    let out = sweep(&plan, &results, &["--jobs", "2"]);
+    let out = study(&plan, &results, &["--jobs", "2"]);
     assert!(
         out.status.success(),
         "{}",
@@ -226,7 +226,7 @@ fn a_killed_sweep_resumes_with_every_result_exactly_once() {
     assert!(stderr.contains(&format!("{before} already in")), "{stderr}");
 
     // A third run has nothing left to do.
-    let out = sweep(&plan, &results, &[]);
+    let out = study(&plan, &results, &[]);
     assert!(out.status.success());
     assert!(String::from_utf8_lossy(&out.stderr).contains(", 0 done"));
     assert_eq!(lines_by_key(&results).0, JOBS);
@@ -240,7 +240,7 @@ fn plan_errors_name_file_line_and_column() {
         "{\n  \"benchmarks\": [\"nets/*.blif\"],\n  \"libraries\": [\"ribbon3\"],\n  \"goals\": [\"fast\"]\n}\n",
     )
     .unwrap();
-    let out = sweep(&plan, &dir.path().join("r.jsonl"), &[]);
+    let out = study(&plan, &dir.path().join("r.jsonl"), &[]);
     assert_eq!(out.status.code(), Some(2));
     let stderr = String::from_utf8_lossy(&out.stderr);
     assert!(stderr.starts_with("error: "), "{stderr}");
@@ -251,7 +251,7 @@ fn plan_errors_name_file_line_and_column() {
         "{\"benchmarks\": [\"none/*.blif\"], \"libraries\": [\"ribbon3\"]}",
     )
     .unwrap();
-    let out = sweep(&plan, &dir.path().join("r.jsonl"), &[]);
+    let out = study(&plan, &dir.path().join("r.jsonl"), &[]);
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("plan.json:1:17:"));
 
@@ -260,10 +260,10 @@ fn plan_errors_name_file_line_and_column() {
         "{\"benchmarks\": [\"nets/*.blif\"], \"libraries\": [\"nope\"]}",
     )
     .unwrap();
-    let out = sweep(&plan, &dir.path().join("r.jsonl"), &[]);
+    let out = study(&plan, &dir.path().join("r.jsonl"), &[]);
     assert_eq!(out.status.code(), Some(2));
 
-    let out = sweep(&plan, &dir.path().join("r.jsonl"), &["--shard", "4/3"]);
+    let out = study(&plan, &dir.path().join("r.jsonl"), &["--shard", "4/3"]);
     assert_eq!(out.status.code(), Some(2));
 }
 
@@ -293,4 +293,53 @@ fn example_plan_loads_and_expands() {
     let slurm = std::fs::read_to_string("examples/study_slurm.sh").unwrap();
     assert!(slurm.contains("#SBATCH --array="));
     assert!(slurm.contains("--shard \"$SLURM_ARRAY_TASK_ID/$SLURM_ARRAY_TASK_COUNT\""));
+}
+
+#[test]
+fn old_command_names_still_work_for_one_release_with_a_note() {
+    // `sweep` and `merge` are hidden aliases of `study` and `tabulate`.
+    let (dir, plan) = setup();
+    std::fs::write(
+        &plan,
+        r#"{"benchmarks": ["nets/*.blif"], "libraries": ["ribbon3"], "goals": ["area"],
+            "options": {"verify": "none", "patterns": 64}}"#,
+    )
+    .unwrap();
+    let results = dir.path().join("r.jsonl");
+    let out = Command::cargo_bin("ribbonmap")
+        .unwrap()
+        .arg("sweep")
+        .arg(&plan)
+        .arg("-o")
+        .arg(&results)
+        .output()
+        .unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(out.status.success(), "{stderr}");
+    assert!(stderr.contains("now called 'ribbonmap study'"), "{stderr}");
+    assert_eq!(lines_by_key(&results).0, 1);
+    let out = Command::cargo_bin("ribbonmap")
+        .unwrap()
+        .arg("merge")
+        .arg(&results)
+        .output()
+        .unwrap();
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(out.status.success(), "{stderr}");
+    assert!(
+        stderr.contains("now called 'ribbonmap tabulate'"),
+        "{stderr}"
+    );
+    // The help lists only the new names.
+    let out = Command::cargo_bin("ribbonmap")
+        .unwrap()
+        .arg("--help")
+        .output()
+        .unwrap();
+    let help = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        help.contains("study") && help.contains("tabulate"),
+        "{help}"
+    );
+    assert!(!help.contains("sweep") && !help.contains("merge"), "{help}");
 }

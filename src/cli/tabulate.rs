@@ -1,4 +1,4 @@
-//! `ribbonmap merge`: combine sweep result files (for example the shards of
+//! `ribbonmap tabulate`: combine study result files (for example the shards of
 //! a job array), drop duplicate plan keys and print the comparison tables.
 
 use super::common::Format;
@@ -7,17 +7,17 @@ use super::{CliError, CmdResult, EXIT_OK};
 use crate::study::{read_results, Metric};
 use std::path::PathBuf;
 
-/// Arguments of `ribbonmap merge`.
+/// Arguments of `ribbonmap tabulate`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Result files written by `ribbonmap sweep` ('-' reads standard input).
+    /// Result files written by `ribbonmap study` ('-' reads standard input).
     #[arg(required = true, value_name = "RESULTS.jsonl")]
     results: Vec<PathBuf>,
     /// Table format.
     #[arg(long, value_enum, default_value = "text")]
     format: Format,
     /// Library the ratios are relative to (default: the first one found).
-    #[arg(long, value_name = "LIBRARY")]
+    #[arg(long, value_name = "LIB")]
     baseline: Option<String>,
     /// Also write a grouped bar chart of the ratios to this SVG file.
     #[arg(long, value_name = "OUT.svg")]
@@ -26,7 +26,7 @@ pub struct Args {
     #[arg(long = "chart-metric", value_enum, default_value = "cells")]
     chart_metric: Metric,
     /// Also write the combined, duplicate-free result lines to this file.
-    #[arg(short = 'o', long = "output", value_name = "MERGED.jsonl")]
+    #[arg(short = 'o', long = "output", value_name = "RESULTS.jsonl")]
     output: Option<PathBuf>,
 }
 
@@ -34,7 +34,7 @@ pub struct Args {
 pub fn run(args: Args) -> CmdResult {
     let merged = read_results(&args.results)?;
     for file in &merged.truncated {
-        eprintln!("note: {file}: ignored an unfinished last line (an interrupted sweep)");
+        eprintln!("note: {file}: ignored an unfinished last line (an interrupted study run)");
     }
     if merged.duplicates > 0 {
         eprintln!(
