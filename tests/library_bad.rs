@@ -241,3 +241,97 @@ fn loading_a_broken_library_for_mapping_is_bad_input() {
     assert_eq!(err.exit_code(), 2);
     assert!(ribbonmap::cli::common::load_library("cmos-le").is_ok());
 }
+
+/// The nand-nor-inv library with the inverter's function replaced.
+fn library_with_inverter_function(function: &str) -> String {
+    let text = std::fs::read_to_string(
+        PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("libraries/nand-nor-inv.json"),
+    )
+    .unwrap();
+    assert!(text.contains("\"function\": \"!a\""));
+    text.replacen(
+        "\"function\": \"!a\"",
+        &format!("\"function\": \"{function}\""),
+        1,
+    )
+}
+
+fn ribbonmap(args: &[&str], file: &std::path::Path) -> std::process::Output {
+    let cache = tempfile::tempdir().unwrap();
+    Command::cargo_bin("ribbonmap")
+        .unwrap()
+        .env("RIBBONMAP_CACHE_DIR", cache.path())
+        .args(args)
+        .arg(file)
+        .output()
+        .unwrap()
+}
+
+/// A one-line `error: FILE:LINE:COL: ...` message, exit 2 (the project's
+/// exit-code contract for bad input).
+fn assert_located_bad_input(out: &std::process::Output, file: &std::path::Path, at: &str) {
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert_eq!(stderr.lines().count(), 1, "{stderr}");
+    let prefix = format!("error: {}:{at}", file.display());
+    assert!(
+        stderr.starts_with(&prefix),
+        "expected {prefix}…, got {stderr}"
+    );
+}
+
+#[test]
+fn deeply_nested_function_is_refused_without_overflowing_the_stack() {
+    // Issue 18, crash 4: a function nested about 8,000 parentheses deep
+    // overflowed the stack in `library check` and `map --lib FILE`.
+    let dir = tempfile::tempdir().unwrap();
+    let file = dir.path().join("deep.json");
+    let deep = format!("!{}a{}", "(".repeat(8000), ")".repeat(8000));
+    std::fs::write(&file, library_with_inverter_function(&deep)).unwrap();
+    // The inverter's function is on line 8 of the copied file, and the
+    // message quotes only the start of the expression.
+    let out = ribbonmap(&["library", "check"], &file);
+    assert_eq!(
+        out.status.code(),
+        Some(1),
+        "a library with errors (contract)"
+    );
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert!(stdout.contains("nested more than 200 deep"), "{stdout}");
+    let out = Command::cargo_bin("ribbonmap")
+        .unwrap()
+        .args(["map", "benchmarks/adder16_ripple.blif", "--lib"])
+        .arg(&file)
+        .output()
+        .unwrap();
+    assert_located_bad_input(&out, &file, "8:");
+    assert!(String::from_utf8_lossy(&out.stderr).len() < 400);
+    let chain = vec!["a"; 50_000].join(" ^ ");
+    std::fs::write(
+        &file,
+        library_with_inverter_function(&format!("!({chain})")),
+    )
+    .unwrap();
+    let out = ribbonmap(&["library", "check"], &file);
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stdout).contains("operators deep"));
+}
+
+#[test]
+fn empty_and_non_utf8_library_files_are_bad_input_at_a_position() {
+    let dir = tempfile::tempdir().unwrap();
+    let empty = dir.path().join("empty.json");
+    std::fs::write(&empty, "").unwrap();
+    assert_located_bad_input(&ribbonmap(&["library", "check"], &empty), &empty, "1:1: ");
+    std::fs::write(&empty, "\n  \n").unwrap();
+    assert_located_bad_input(&ribbonmap(&["library", "check"], &empty), &empty, "3:1: ");
+    // A Latin-1 'é' (byte 0xE9) in the description on line 4.
+    let latin1 = dir.path().join("latin1.json");
+    let mut bytes = library_with_inverter_function("!a").into_bytes();
+    let at = bytes.windows(4).position(|w| w == b"Two-").unwrap();
+    bytes[at] = 0xE9;
+    std::fs::write(&latin1, &bytes).unwrap();
+    let out = ribbonmap(&["library", "check"], &latin1);
+    assert_located_bad_input(&out, &latin1, "4:19: ");
+    assert!(String::from_utf8_lossy(&out.stderr).contains("0xE9"));
+}

@@ -27,17 +27,18 @@ pub struct Args {
     /// or not at all (none). The table says which was done.
     #[arg(long, value_enum, default_value = "full")]
     verify: VerifyMode,
-    /// Largest cut of the mapper.
-    #[arg(long = "cut-size", value_name = "N")]
+    /// Largest cut of the mapper (2 to 6; default 4).
+    #[arg(long = "cut-size", value_name = "N", value_parser = clap::value_parser!(u32).range(2..=6))]
     cut_size: Option<u32>,
-    /// Priority cuts kept per node.
-    #[arg(long = "cuts-per-node", value_name = "N")]
+    /// Priority cuts kept per node (1 to 64).
+    #[arg(long = "cuts-per-node", value_name = "N", value_parser = clap::value_parser!(u32).range(1..=64))]
     cuts_per_node: Option<u32>,
     /// Probability that an input is 1 in the energy simulation.
     #[arg(long = "input-probability", default_value_t = 0.5, value_name = "P")]
     input_probability: f64,
-    /// Random patterns simulated for energy.
-    #[arg(long, value_name = "N", default_value_t = crate::study::power::DEFAULT_PATTERNS)]
+    /// Random patterns simulated for energy (2 to 16,777,216).
+    #[arg(long, value_name = "N", default_value_t = crate::study::power::DEFAULT_PATTERNS,
+          value_parser = clap::value_parser!(u64).range(2..=16_777_216))]
     patterns: u64,
     /// Table format.
     #[arg(long, value_enum, default_value = "text")]
@@ -48,8 +49,8 @@ pub struct Args {
     /// Metric the chart shows.
     #[arg(long = "chart-metric", value_enum, default_value = "cells")]
     chart_metric: Metric,
-    /// Worker threads (default: one per core).
-    #[arg(long, value_name = "N")]
+    /// Worker threads, 1 to 1024 (default: one per core).
+    #[arg(long, value_name = "N", value_parser = clap::builder::RangedU64ValueParser::<usize>::new().range(1..=1024))]
     jobs: Option<usize>,
     #[command(flatten)]
     read: NetlistArgs,

@@ -41,8 +41,9 @@ pub struct Args {
     /// Stop the search after this many seconds.
     #[arg(long, value_name = "SECONDS")]
     pub time_limit: Option<f64>,
-    /// Largest number of cells to try.
-    #[arg(long, value_name = "N", default_value_t = 10)]
+    /// Largest number of cells to try (1 to 16).
+    #[arg(long, value_name = "N", default_value_t = 10,
+          value_parser = clap::builder::RangedU64ValueParser::<usize>::new().range(1..=16))]
     pub max_steps: usize,
     /// Output format: text or json.
     #[arg(long, value_enum, default_value = "text")]

@@ -52,10 +52,12 @@ pub struct Args {
     #[arg(long, value_enum, default_value = "full")]
     pub verify: VerifyArg,
     /// Largest cut (2 to 6).
-    #[arg(long, value_name = "N", default_value_t = 4)]
+    #[arg(long, value_name = "N", default_value_t = 4,
+          value_parser = clap::builder::RangedU64ValueParser::<usize>::new().range(2..=6))]
     pub cut_size: usize,
-    /// Priority cuts kept per node.
-    #[arg(long, value_name = "N", default_value_t = 8)]
+    /// Priority cuts kept per node (1 to 64).
+    #[arg(long, value_name = "N", default_value_t = 8,
+          value_parser = clap::builder::RangedU64ValueParser::<usize>::new().range(1..=64))]
     pub cuts_per_node: usize,
     /// Also match provably smallest networks (exact synthesis over the
     /// library) for cut functions of up to four inputs. Each new function

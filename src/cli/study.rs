@@ -18,8 +18,8 @@ pub struct Args {
     /// --shard $SLURM_ARRAY_TASK_ID/$SLURM_ARRAY_TASK_COUNT.
     #[arg(long, value_name = "I/N")]
     shard: Option<Shard>,
-    /// Worker threads (default: one per core).
-    #[arg(long, value_name = "N")]
+    /// Worker threads, 1 to 1024 (default: one per core).
+    #[arg(long, value_name = "N", value_parser = clap::builder::RangedU64ValueParser::<usize>::new().range(1..=1024))]
     jobs: Option<usize>,
     /// Results file; finished jobs are appended, and jobs already in it are
     /// skipped.

@@ -70,8 +70,8 @@ impl Library {
                     problems: vec![LibraryProblem {
                         cell: None,
                         field: None,
-                        line: e.line() as u32,
-                        column: e.column() as u32,
+                        line: (e.line() as u32).max(1),
+                        column: (e.column() as u32).max(1),
                         message: format!("not valid JSON: {message}"),
                     }],
                 });
@@ -90,22 +90,45 @@ impl Library {
     }
 
     /// Reads and validates the library file at `path`.
+    ///
+    /// A file that cannot be read, is not UTF-8 text or is empty is
+    /// `unreadable` (bad input, like an unreadable netlist); the latter two
+    /// name the line and column.
     pub fn load(path: &Path) -> Result<Library, LibraryError> {
         let file = path.display().to_string();
-        match std::fs::read_to_string(path) {
-            Ok(text) => Library::from_json_str(&text, &file),
-            Err(e) => Err(LibraryError {
-                file,
-                unreadable: true,
-                problems: vec![LibraryProblem {
-                    cell: None,
-                    field: None,
-                    line: 0,
-                    column: 0,
-                    message: format!("cannot read the library file: {e}"),
-                }],
-            }),
+        let unreadable = |line: u32, column: u32, message: String| LibraryError {
+            file: file.clone(),
+            unreadable: true,
+            problems: vec![LibraryProblem {
+                cell: None,
+                field: None,
+                line,
+                column,
+                message,
+            }],
+        };
+        let bytes = std::fs::read(path)
+            .map_err(|e| unreadable(0, 0, format!("cannot read the library file: {e}")))?;
+        let text = crate::diag::utf8_text(&file, bytes)
+            .map_err(|e| unreadable(e.line, e.column, e.message))?;
+        if text.trim().is_empty() {
+            let (line, column) = crate::diag::line_column(text.as_bytes(), text.len());
+            return Err(unreadable(
+                line,
+                column,
+                "the library file is empty: expected a ribbonmap-library/1 JSON object".into(),
+            ));
         }
+        Library::from_json_str(&text, &file)
+    }
+}
+
+/// `text` itself when it has at most `keep` characters, else its first
+/// `keep` characters and an ellipsis (so a message stays one short line).
+fn shortened(text: &str, keep: usize) -> String {
+    match text.char_indices().nth(keep) {
+        Some((cut, _)) => format!("{}…", &text[..cut]),
+        None => text.to_string(),
     }
 }
 
@@ -589,8 +612,10 @@ impl Reader {
                             &fsite,
                             e.column - 1,
                             format!(
-                                "bad expression \"{text}\" at column {}: {}",
-                                e.column, e.message
+                                "bad expression \"{}\" at column {}: {}",
+                                shortened(&text, 60),
+                                e.column,
+                                e.message
                             ),
                         );
                         return None;

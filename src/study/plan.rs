@@ -49,6 +49,15 @@ pub enum VerifyMode {
     None,
 }
 
+/// Cut sizes the mapper accepts (`cut_size`, `--cut-size`).
+pub const CUT_SIZES: std::ops::RangeInclusive<u32> = 2..=6;
+/// Priority cuts per node the mapper accepts (`cuts_per_node`).
+pub const CUTS_PER_NODE: std::ops::RangeInclusive<u32> = 1..=64;
+/// Energy-simulation pattern counts accepted (`patterns`, `--patterns`):
+/// at least one transition, at most 2^24 patterns (a quarter of a second
+/// per thousand cells, and 2 MB of input words per input).
+pub const PATTERNS: std::ops::RangeInclusive<u64> = 2..=16_777_216;
+
 /// Mapping and evaluation options of a plan (all optional).
 #[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -287,7 +296,12 @@ pub fn json_error(file: &str, e: &serde_json::Error) -> SourceError {
         Some(i) => text[..i].to_string(),
         None => text,
     };
-    SourceError::new(file, e.line() as u32, e.column() as u32, message)
+    SourceError::new(
+        file,
+        (e.line() as u32).max(1),
+        (e.column() as u32).max(1),
+        message,
+    )
 }
 
 fn generator_label(
@@ -320,8 +334,9 @@ impl Plan {
     /// Reads and expands the plan at `path`.
     pub fn load(path: &Path) -> Result<Plan, SourceError> {
         let file = path.display().to_string();
-        let text = std::fs::read_to_string(path)
+        let bytes = std::fs::read(path)
             .map_err(|e| SourceError::new(&file, 0, 0, format!("cannot read plan: {e}")))?;
+        let text = crate::diag::utf8_text(&file, bytes)?;
         Plan::parse(&text, path)
     }
 
@@ -349,6 +364,34 @@ impl Plan {
         }
         if raw.goals.is_empty() {
             return Err(here("\"goals\"", "the plan lists no goals".into()));
+        }
+        if let Some(k) = raw.options.cut_size {
+            if !CUT_SIZES.contains(&k) {
+                return Err(here(
+                    "\"cut_size\"",
+                    format!("cut_size {k} is outside the allowed range 2 to 6"),
+                ));
+            }
+        }
+        if let Some(c) = raw.options.cuts_per_node {
+            if !CUTS_PER_NODE.contains(&c) {
+                return Err(here(
+                    "\"cuts_per_node\"",
+                    format!("cuts_per_node {c} is outside the allowed range 1 to 64"),
+                ));
+            }
+        }
+        if let Some(n) = raw.options.patterns {
+            if !PATTERNS.contains(&n) {
+                return Err(here(
+                    "\"patterns\"",
+                    format!(
+                        "patterns {n} is outside the allowed range {} to {}",
+                        PATTERNS.start(),
+                        PATTERNS.end()
+                    ),
+                ));
+            }
         }
         if let Some(p) = raw.options.input_probability {
             if !(0.0..=1.0).contains(&p) {
@@ -391,12 +434,18 @@ impl Plan {
                     }
                     found.sort();
                     for p in found {
-                        let rel = p.strip_prefix(&base).unwrap_or(&p);
-                        let spec = rel
-                            .components()
-                            .map(|c| c.as_os_str().to_string_lossy().to_string())
-                            .collect::<Vec<_>>()
-                            .join("/");
+                        // A relative path is written with '/' whatever the
+                        // platform, so plan keys agree across machines; an
+                        // absolute one as found (joining its root component
+                        // with '/' would double the leading slash).
+                        let spec = match p.strip_prefix(&base) {
+                            Ok(rel) if !Path::new(pattern).is_absolute() => rel
+                                .components()
+                                .map(|c| c.as_os_str().to_string_lossy().to_string())
+                                .collect::<Vec<_>>()
+                                .join("/"),
+                            _ => p.to_string_lossy().to_string(),
+                        };
                         let name = p
                             .file_stem()
                             .map(|s| s.to_string_lossy().to_string())

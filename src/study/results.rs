@@ -37,9 +37,11 @@ pub struct ExistingResults {
 
 impl ResultsFile {
     /// Opens (creating if needed) `path` for appending, first cutting off an
-    /// unterminated last line left by an interrupted run. Complete lines that
-    /// are not JSON objects are an error naming their line (the file is not
-    /// one of ours, or was edited by hand).
+    /// unterminated last line left by an interrupted run. Every complete
+    /// line is checked as strictly as [`read_results`] checks it: a result
+    /// line (see [`check_result_line`]) with a `plan_key`; any other line is
+    /// an error naming its line and column (the file is not one of ours, or
+    /// was edited by hand), and nothing is cut or appended then.
     pub fn open(path: &Path) -> Result<(ResultsFile, ExistingResults), SourceError> {
         let name = path.display().to_string();
         let io_err = |e: std::io::Error| SourceError::new(&name, 0, 0, e.to_string());
@@ -50,29 +52,28 @@ impl ResultsFile {
                 Some(i) => i + 1,
                 None => 0,
             };
+            let text = crate::diag::utf8_text(&name, bytes[..complete].to_vec())?;
+            for (i, line) in text.lines().enumerate() {
+                if line.trim().is_empty() {
+                    continue;
+                }
+                let record = check_result_line(&name, i, line)?;
+                let Some(key) = record.plan_key else {
+                    return Err(SourceError::new(
+                        &name,
+                        i as u32 + 1,
+                        1,
+                        "bad result line: no 'plan_key' (a study results file holds only lines written by `ribbonmap study`)",
+                    ));
+                };
+                existing.lines += 1;
+                existing.keys.insert(key);
+            }
             if complete < bytes.len() {
                 let f = OpenOptions::new().write(true).open(path).map_err(io_err)?;
                 f.set_len(complete as u64).map_err(io_err)?;
                 f.sync_all().map_err(io_err)?;
                 existing.repaired_bytes = (bytes.len() - complete) as u64;
-            }
-            let text = String::from_utf8_lossy(&bytes[..complete]);
-            for (i, line) in text.lines().enumerate() {
-                if line.trim().is_empty() {
-                    continue;
-                }
-                let value: serde_json::Value = serde_json::from_str(line).map_err(|e| {
-                    SourceError::new(
-                        &name,
-                        i as u32 + 1,
-                        e.column() as u32,
-                        format!("not a result line: {}", strip_position(&e)),
-                    )
-                })?;
-                existing.lines += 1;
-                if let Some(k) = value.get("plan_key").and_then(|k| k.as_str()) {
-                    existing.keys.insert(k.to_string());
-                }
             }
         }
         let file = OpenOptions::new()
@@ -116,6 +117,30 @@ fn strip_position(e: &serde_json::Error) -> String {
     }
 }
 
+/// Parses line `index` (0-based) of result file `name` as a result line: a
+/// JSON object with the fields of a [`StudyRecord`]. Errors name the line
+/// and column.
+pub fn check_result_line(name: &str, index: usize, line: &str) -> Result<StudyRecord, SourceError> {
+    let value: serde_json::Value = serde_json::from_str(line).map_err(|e| {
+        SourceError::new(
+            name,
+            index as u32 + 1,
+            (e.column() as u32).max(1),
+            format!("not a result line: {}", strip_position(&e)),
+        )
+    })?;
+    if !value.is_object() {
+        return Err(SourceError::new(
+            name,
+            index as u32 + 1,
+            1,
+            "not a result line: expected a JSON object",
+        ));
+    }
+    StudyRecord::from_json(value)
+        .map_err(|m| SourceError::new(name, index as u32 + 1, 1, format!("bad result line: {m}")))
+}
+
 /// Records read from result files.
 #[derive(Debug, Default)]
 pub struct MergedResults {
@@ -138,13 +163,12 @@ pub fn read_results(paths: &[PathBuf]) -> Result<MergedResults, SourceError> {
     for path in paths {
         let name = path.display().to_string();
         let text = if name == "-" {
-            let mut s = String::new();
-            std::io::Read::read_to_string(&mut std::io::stdin(), &mut s)
+            let mut bytes = Vec::new();
+            std::io::Read::read_to_end(&mut std::io::stdin(), &mut bytes)
                 .map_err(|e| SourceError::new("<stdin>", 0, 0, e.to_string()))?;
-            s
+            crate::diag::utf8_text("<stdin>", bytes)?
         } else {
-            std::fs::read_to_string(path)
-                .map_err(|e| SourceError::new(&name, 0, 0, format!("cannot read: {e}")))?
+            crate::diag::read_utf8_file(path)?
         };
         let ends_cleanly = text.is_empty() || text.ends_with('\n');
         let lines: Vec<&str> = text.lines().collect();
@@ -153,24 +177,11 @@ pub fn read_results(paths: &[PathBuf]) -> Result<MergedResults, SourceError> {
                 continue;
             }
             let last = i + 1 == lines.len();
-            let value: serde_json::Value = match serde_json::from_str(line) {
-                Ok(v) => v,
-                Err(_) if last && !ends_cleanly => {
-                    merged.truncated.push(name.clone());
-                    continue;
-                }
-                Err(e) => {
-                    return Err(SourceError::new(
-                        &name,
-                        i as u32 + 1,
-                        e.column() as u32,
-                        format!("not a result line: {}", strip_position(&e)),
-                    ))
-                }
-            };
-            let record = StudyRecord::from_json(value).map_err(|m| {
-                SourceError::new(&name, i as u32 + 1, 1, format!("bad result line: {m}"))
-            })?;
+            if last && !ends_cleanly && serde_json::from_str::<serde_json::Value>(line).is_err() {
+                merged.truncated.push(name.clone());
+                continue;
+            }
+            let record = check_result_line(&name, i, line)?;
             if let Some(k) = &record.plan_key {
                 if !seen.insert(k.clone()) {
                     merged.duplicates += 1;
@@ -209,24 +220,59 @@ mod tests {
     fn truncated_last_line_is_cut_and_keys_found() {
         let dir = tempfile::tempdir().unwrap();
         let p = dir.path().join("r.jsonl");
-        std::fs::write(&p, "{\"plan_key\":\"a\"}\n{\"plan_key\":\"b\"}\n{\"plan_ke").unwrap();
+        std::fs::write(&p, format!("{}\n{}\n{{\"plan_ke", line("a"), line("b"))).unwrap();
         let (file, existing) = ResultsFile::open(&p).unwrap();
         assert_eq!(existing.lines, 2);
         assert_eq!(existing.repaired_bytes, 9);
         assert!(existing.keys.contains("a") && existing.keys.contains("b"));
-        file.append("{\"plan_key\":\"c\"}").unwrap();
+        file.append(&line("c")).unwrap();
         let text = std::fs::read_to_string(&p).unwrap();
         assert_eq!(
             text,
-            "{\"plan_key\":\"a\"}\n{\"plan_key\":\"b\"}\n{\"plan_key\":\"c\"}\n"
+            format!("{}\n{}\n{}\n", line("a"), line("b"), line("c"))
         );
+    }
+
+    /// A complete result line with plan key `key`.
+    fn line(key: &str) -> String {
+        format!(
+            "{{\"benchmark\":\"b\",\"library\":\"ribbon3\",\"goal\":\"area\",\"plan_key\":\"{key}\",\
+             \"cell_count\":1,\"area\":1.0,\"depth\":1,\"delay\":1.0,\"devices\":2,\"verified\":\"proven\"}}"
+        )
+    }
+
+    #[test]
+    fn lines_a_study_cannot_use_are_located_before_anything_is_cut() {
+        // As strict as `tabulate`: an object with the record's fields and a
+        // plan key; the error names the line, and the file is left as it was.
+        let dir = tempfile::tempdir().unwrap();
+        let p = dir.path().join("r.jsonl");
+        for (bad, column) in [
+            ("[1, 2]", 1),
+            ("{\"plan_key\":\"x\"}", 1),
+            ("{\"benchmark\":\"b\"", 16),
+        ] {
+            let text = format!("{}\n{bad}\n{}\n{{\"unfinis", line("a"), line("b"));
+            std::fs::write(&p, &text).unwrap();
+            let e = ResultsFile::open(&p).unwrap_err();
+            assert_eq!((e.line, e.column), (2, column), "{bad}: {e}");
+            assert_eq!(std::fs::read_to_string(&p).unwrap(), text);
+        }
+        let mut without_key = line("a").replace(",\"plan_key\":\"a\"", "");
+        without_key.push('\n');
+        std::fs::write(&p, &without_key).unwrap();
+        let e = ResultsFile::open(&p).unwrap_err();
+        assert!(e.message.contains("plan_key"), "{e}");
+        std::fs::write(&p, b"\xFF\n").unwrap();
+        let e = ResultsFile::open(&p).unwrap_err();
+        assert_eq!((e.line, e.column), (1, 1), "{e}");
     }
 
     #[test]
     fn garbage_line_is_located() {
         let dir = tempfile::tempdir().unwrap();
         let p = dir.path().join("r.jsonl");
-        std::fs::write(&p, "{\"plan_key\":\"a\"}\nnot json\n").unwrap();
+        std::fs::write(&p, format!("{}\nnot json\n", line("a"))).unwrap();
         let e = ResultsFile::open(&p).unwrap_err();
         assert_eq!(e.line, 2);
     }

@@ -1,9 +1,11 @@
 //! Running a study plan end to end: load its libraries and benchmarks, then
 //! evaluate every job of the chosen shard into the results file.
 //!
-//! Inputs are loaded before any job runs, so a bad plan, netlist or library
-//! stops the study run at once (exit 2) instead of after hours of work; only the
-//! benchmarks the shard still needs are read.
+//! The plan is checked whole before any job runs: every library of the plan
+//! is loaded and every generated benchmark's parameters are checked (also
+//! those of other shards and of jobs already done), so a bad plan stops the
+//! study run at once (exit 2) instead of after hours of work or on another
+//! machine. Of the netlist files only those the shard still needs are read.
 
 use super::evaluate::{evaluate, EvaluateOptions};
 use super::jobs::{run_jobs, RunOptions, StudySummary};
@@ -129,19 +131,25 @@ pub fn run_study(
         .filter(|j| !existing.keys.contains(&j.plan_key))
         .collect();
     let mut libraries: HashMap<usize, Library> = HashMap::new();
+    for (index, spec) in plan.libraries.iter().enumerate() {
+        let lib = load_library(&spec.load).map_err(|err| {
+            StudyError::Input(format!(
+                "{}: library '{}': {err}",
+                plan.path.display(),
+                spec.spec
+            ))
+        })?;
+        libraries.insert(index, lib);
+    }
     let mut benchmarks: HashMap<usize, Network> = HashMap::new();
-    for job in &todo {
-        if let std::collections::hash_map::Entry::Vacant(e) = libraries.entry(job.library) {
-            let spec = &plan.libraries[job.library];
-            let lib = load_library(&spec.load).map_err(|err| {
-                StudyError::Input(format!(
-                    "{}: library '{}': {err}",
-                    plan.path.display(),
-                    spec.spec
-                ))
-            })?;
-            e.insert(lib);
+    for (index, b) in plan.benchmarks.iter().enumerate() {
+        if let BenchmarkSource::Generate { family, params } = &b.source {
+            let network = generate_benchmark(family, params)
+                .map_err(|err| StudyError::Input(format!("{}: {err}", plan.path.display())))?;
+            benchmarks.insert(index, network);
         }
+    }
+    for job in &todo {
         if let std::collections::hash_map::Entry::Vacant(e) = benchmarks.entry(job.benchmark) {
             let b = &plan.benchmarks[job.benchmark];
             let network = load_benchmark(&b.source)?;

@@ -13,8 +13,22 @@
 //! the place in the expression where it went wrong. The result is an [`Expr`]
 //! tree over input indices; [`Expr::truth`] turns it into a truth table under
 //! the crate's convention (bit r is the value on row r; input k is bit k of r).
+//!
+//! A library file is input like any other, so the parser bounds what hostile
+//! text can make it do: parentheses, `!` and `maj(...)` nest at most
+//! [`MAX_NESTING`] deep (the same limit as the netlist expression parser), and
+//! the tree it builds is at most [`MAX_HEIGHT`] levels high (long chains of
+//! `&`, `^` or `|` count), so neither parsing nor evaluating nor dropping the
+//! tree can overflow the stack.
 
 use std::fmt;
+
+/// Deepest nesting of parentheses, `!` and `maj(...)` a function may use.
+pub const MAX_NESTING: usize = 200;
+
+/// Highest expression tree a function may build (a chain of n binary
+/// operators is n levels high).
+pub const MAX_HEIGHT: usize = 2000;
 
 /// A parsed expression over input indices.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -118,6 +132,7 @@ pub fn parse_expression<S: AsRef<str>>(text: &str, inputs: &[S]) -> Result<Expr,
         pos: 0,
         inputs: inputs.iter().map(|s| s.as_ref()).collect(),
         end_column: text.chars().count() + 1,
+        nesting: 0,
     };
     if parser.tokens.is_empty() {
         return Err(ExpressionError {
@@ -125,7 +140,7 @@ pub fn parse_expression<S: AsRef<str>>(text: &str, inputs: &[S]) -> Result<Expr,
             message: "empty expression: expected a function of the inputs".into(),
         });
     }
-    let expr = parser.or()?;
+    let (expr, _) = parser.or()?;
     if let Some(tok) = parser.peek() {
         return Err(ExpressionError {
             column: tok.column,
@@ -261,7 +276,12 @@ struct Parser<'a> {
     pos: usize,
     inputs: Vec<&'a str>,
     end_column: usize,
+    /// Open parentheses, `!` and `maj(` around the current position.
+    nesting: usize,
 }
+
+/// A parsed subexpression and the height of its tree.
+type Parsed = (Expr, usize);
 
 impl Parser<'_> {
     fn peek(&self) -> Option<&Token> {
@@ -298,57 +318,96 @@ impl Parser<'_> {
         }
     }
 
-    fn or(&mut self) -> Result<Expr, ExpressionError> {
-        let mut left = self.xor()?;
+    fn or(&mut self) -> Result<Parsed, ExpressionError> {
+        let (mut left, mut height) = self.xor()?;
         while self.eat(&TokenKind::Or) {
-            let right = self.xor()?;
+            let column = self.tokens[self.pos - 1].column;
+            let (right, right_height) = self.xor()?;
+            height = self.taller(height.max(right_height), column)?;
             left = Expr::Or(Box::new(left), Box::new(right));
         }
-        Ok(left)
+        Ok((left, height))
     }
 
-    fn xor(&mut self) -> Result<Expr, ExpressionError> {
-        let mut left = self.and()?;
+    fn xor(&mut self) -> Result<Parsed, ExpressionError> {
+        let (mut left, mut height) = self.and()?;
         while self.eat(&TokenKind::Xor) {
-            let right = self.and()?;
+            let column = self.tokens[self.pos - 1].column;
+            let (right, right_height) = self.and()?;
+            height = self.taller(height.max(right_height), column)?;
             left = Expr::Xor(Box::new(left), Box::new(right));
         }
-        Ok(left)
+        Ok((left, height))
     }
 
-    fn and(&mut self) -> Result<Expr, ExpressionError> {
-        let mut left = self.unary()?;
+    fn and(&mut self) -> Result<Parsed, ExpressionError> {
+        let (mut left, mut height) = self.unary()?;
         while self.eat(&TokenKind::And) {
-            let right = self.unary()?;
+            let column = self.tokens[self.pos - 1].column;
+            let (right, right_height) = self.unary()?;
+            height = self.taller(height.max(right_height), column)?;
             left = Expr::And(Box::new(left), Box::new(right));
         }
-        Ok(left)
+        Ok((left, height))
     }
 
-    fn unary(&mut self) -> Result<Expr, ExpressionError> {
+    /// One level more than `height`, refused past [`MAX_HEIGHT`].
+    fn taller(&self, height: usize, column: usize) -> Result<usize, ExpressionError> {
+        if height + 1 > MAX_HEIGHT {
+            return Err(ExpressionError {
+                column,
+                message: format!(
+                    "expression more than {MAX_HEIGHT} operators deep: split the chain or write the cell's function as a truth table"
+                ),
+            });
+        }
+        Ok(height + 1)
+    }
+
+    /// Enters one more level of parentheses, `!` or `maj(`, refused past
+    /// [`MAX_NESTING`].
+    fn enter(&mut self, column: usize) -> Result<(), ExpressionError> {
+        self.nesting += 1;
+        if self.nesting > MAX_NESTING {
+            return Err(ExpressionError {
+                column,
+                message: format!("expression nested more than {MAX_NESTING} deep"),
+            });
+        }
+        Ok(())
+    }
+
+    fn unary(&mut self) -> Result<Parsed, ExpressionError> {
         if self.eat(&TokenKind::Not) {
-            return Ok(Expr::Not(Box::new(self.unary()?)));
+            let column = self.tokens[self.pos - 1].column;
+            self.enter(column)?;
+            let (inner, height) = self.unary()?;
+            self.nesting -= 1;
+            let height = self.taller(height, column)?;
+            return Ok((Expr::Not(Box::new(inner)), height));
         }
         self.primary()
     }
 
-    fn primary(&mut self) -> Result<Expr, ExpressionError> {
+    fn primary(&mut self) -> Result<Parsed, ExpressionError> {
         let Some(tok) = self.peek().cloned() else {
             return Err(self.error_here("expected an input name, 0, 1, maj(...), ! or '('"));
         };
         match tok.kind {
             TokenKind::Zero => {
                 self.pos += 1;
-                Ok(Expr::Const(false))
+                Ok((Expr::Const(false), 1))
             }
             TokenKind::One => {
                 self.pos += 1;
-                Ok(Expr::Const(true))
+                Ok((Expr::Const(true), 1))
             }
             TokenKind::Open => {
                 self.pos += 1;
+                self.enter(tok.column)?;
                 let inner = self.or()?;
                 self.expect(TokenKind::Close, "to close the '(' opened here earlier")?;
+                self.nesting -= 1;
                 Ok(inner)
             }
             TokenKind::Name(name) => {
@@ -356,13 +415,16 @@ impl Parser<'_> {
                 let is_call = self.peek().map(|t| &t.kind) == Some(&TokenKind::Open);
                 if name == "maj" && is_call {
                     self.pos += 1;
-                    let a = self.or()?;
+                    self.enter(tok.column)?;
+                    let (a, ha) = self.or()?;
                     self.expect(TokenKind::Comma, "between the arguments of maj")?;
-                    let b = self.or()?;
+                    let (b, hb) = self.or()?;
                     self.expect(TokenKind::Comma, "between the arguments of maj")?;
-                    let c = self.or()?;
+                    let (c, hc) = self.or()?;
                     self.expect(TokenKind::Close, "after the three arguments of maj")?;
-                    return Ok(Expr::Maj(Box::new(a), Box::new(b), Box::new(c)));
+                    self.nesting -= 1;
+                    let height = self.taller(ha.max(hb).max(hc), tok.column)?;
+                    return Ok((Expr::Maj(Box::new(a), Box::new(b), Box::new(c)), height));
                 }
                 if is_call {
                     return Err(ExpressionError {
@@ -373,7 +435,7 @@ impl Parser<'_> {
                     });
                 }
                 match self.inputs.iter().position(|n| *n == name) {
-                    Some(k) => Ok(Expr::Input(k)),
+                    Some(k) => Ok((Expr::Input(k), 1)),
                     None => Err(ExpressionError {
                         column: tok.column,
                         message: format!(
@@ -433,5 +495,30 @@ mod tests {
         assert_eq!(e.column, 9);
         let e = parse_expression("a b", &["a", "b"]).unwrap_err();
         assert_eq!(e.column, 3);
+    }
+
+    #[test]
+    fn hostile_nesting_and_chains_are_refused_not_overflowing_the_stack() {
+        // Issue 18, crash 4: about 8,000 nested parentheses overflowed the
+        // stack. Each case is refused at the first token past the limit.
+        let deep = format!("{}a{}", "(".repeat(8000), ")".repeat(8000));
+        let e = parse_expression(&deep, &["a"]).unwrap_err();
+        assert_eq!(e.column, MAX_NESTING + 1, "{e}");
+        let nots = format!("{}a", "!".repeat(100_000));
+        assert!(parse_expression(&nots, &["a"]).is_err());
+        let majs = format!("{}a{}", "maj(a, a, ".repeat(5000), ")".repeat(5000));
+        assert!(parse_expression(&majs, &["a"]).is_err());
+        let chain = vec!["a"; 100_000].join(" & ");
+        let e = parse_expression(&chain, &["a"]).unwrap_err();
+        assert!(e.message.contains("operators deep"), "{e}");
+        // Just inside the limits still parses and evaluates (the expected
+        // values follow from an even number of complements, common practice).
+        let ok = format!("{}a{}", "(".repeat(MAX_NESTING), ")".repeat(MAX_NESTING));
+        assert_eq!(parse_expression(&ok, &["a"]).unwrap().truth(1), 0b10);
+        let nots = format!("{}a", "!".repeat(MAX_NESTING));
+        assert_eq!(parse_expression(&nots, &["a"]).unwrap().truth(1), 0b10);
+        let chain = vec!["a"; MAX_HEIGHT - 1].join(" ^ ");
+        // An odd number of a's XORed is a.
+        assert_eq!(parse_expression(&chain, &["a"]).unwrap().truth(1), 0b10);
     }
 }
