@@ -115,7 +115,10 @@ fn a_mapping_that_fails_its_own_verification_exits_70() {
         err.starts_with("error: internal error: the mapped netlist fails verification"),
         "{err}"
     );
-    assert!(err.contains("this is a bug in ribbonmap; please report it"), "{err}");
+    assert!(
+        err.contains("this is a bug in ribbonmap; please report it"),
+        "{err}"
+    );
     // Without the hook the same command succeeds.
     let out = ribbonmap(dir.path())
         .args(["map", &path, "--lib", "ribbon2"])

@@ -116,8 +116,10 @@ fn text_markdown_csv_side_by_side() {
 
 #[test]
 fn bad_inputs_exit_2() {
+    let dir = tempfile::tempdir().unwrap();
     Command::cargo_bin("ribbonmap")
         .unwrap()
+        .env("RIBBONMAP_CACHE_DIR", dir.path())
         .args(["coverage", "--inputs", "7"])
         .assert()
         .code(2);

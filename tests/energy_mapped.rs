@@ -2,6 +2,8 @@
 //! energy model, checked by hand computation under Gray-code vectors, and
 //! the `energy_per_op` / `static_power` fields of `ribbonmap map`.
 
+mod cache_support;
+
 use ribbonmap::library::Library;
 use ribbonmap::netlist::{Driver, MappedNetlist, Port};
 use ribbonmap::study::power::{InputVectors, Stimulus};
@@ -84,6 +86,7 @@ fn map_command_reports_energy_fields() {
     .unwrap();
     let out = assert_cmd::Command::cargo_bin("ribbonmap")
         .unwrap()
+        .env("RIBBONMAP_CACHE_DIR", cache_support::dir())
         .args([
             "map",
             path.to_str().unwrap(),

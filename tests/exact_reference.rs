@@ -292,7 +292,10 @@ fn two_input_with_complemented_outputs() -> Vec<GateSpec> {
 }
 
 #[test]
-#[cfg_attr(debug_assertions, ignore)]
+#[cfg_attr(
+    debug_assertions,
+    ignore = "heavy: a 200,000-conflict SAT proof; runs in release builds (cargo test --release)"
+)]
 fn relaxed_bound_proves_what_the_conflict_limit_cannot() {
     // 0x0116 (four inputs) needs seven cells here. The direct proof that six
     // do not suffice outlasts this conflict limit; before six steps the

@@ -2,11 +2,14 @@
 //! netlists (sources named at each check), JSON contract fields, exit code 2
 //! with a located one-line error for every malformed file in tests/data/bad.
 
+mod cache_support;
+
 use assert_cmd::Command;
 
 fn inspect(args: &[&str]) -> std::process::Output {
     Command::cargo_bin("ribbonmap")
         .unwrap()
+        .env("RIBBONMAP_CACHE_DIR", cache_support::dir())
         .arg("inspect")
         .args(args)
         .output()
@@ -98,6 +101,7 @@ fn stdin_with_input_format() {
     let text = std::fs::read("tests/data/reference/netlists/arith/rca8_flat.blif").unwrap();
     let out = Command::cargo_bin("ribbonmap")
         .unwrap()
+        .env("RIBBONMAP_CACHE_DIR", cache_support::dir())
         .args(["inspect", "-", "--input-format", "blif", "--format", "json"])
         .write_stdin(text)
         .output()

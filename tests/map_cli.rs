@@ -1,10 +1,14 @@
 //! `ribbonmap map` from the command line: JSON contract fields (docs/json-output.md),
 //! written netlists, and exit code 2 on bad input.
 
+mod cache_support;
+
 use assert_cmd::Command;
 
 fn ribbonmap() -> Command {
-    Command::cargo_bin("ribbonmap").unwrap()
+    let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.env("RIBBONMAP_CACHE_DIR", cache_support::dir());
+    cmd
 }
 
 #[test]

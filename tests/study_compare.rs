@@ -6,6 +6,8 @@
 //! before they are compared; every mapping is then proven equivalent to its
 //! benchmark by the command itself (`verified: proven`).
 
+mod cache_support;
+
 use assert_cmd::Command;
 use ribbonmap::generate::{generate, Family, Params};
 use ribbonmap::network::{Network, SplitMix64};
@@ -77,6 +79,7 @@ fn write(dir: &Path, name: &str, net: &Network) -> PathBuf {
 
 fn compare(paths: &[PathBuf], extra: &[&str]) -> std::process::Output {
     let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.env("RIBBONMAP_CACHE_DIR", cache_support::dir());
     cmd.arg("compare").args(paths);
     for lib in LIBRARIES {
         cmd.args(["--lib", lib]);
@@ -237,12 +240,14 @@ fn bad_inputs_exit_with_two() {
     let bad = dir.path().join("missing.blif");
     let out = Command::cargo_bin("ribbonmap")
         .unwrap()
+        .env("RIBBONMAP_CACHE_DIR", cache_support::dir())
         .args(["compare", bad.to_str().unwrap(), "--lib", "ribbon3"])
         .output()
         .unwrap();
     assert_eq!(out.status.code(), Some(2));
     let out = Command::cargo_bin("ribbonmap")
         .unwrap()
+        .env("RIBBONMAP_CACHE_DIR", cache_support::dir())
         .args(["compare", bad.to_str().unwrap(), "--lib", "no-such-library"])
         .output()
         .unwrap();
