@@ -53,7 +53,10 @@ fn three_input_coverage_matches_circuitdb_histogram() {
 }
 
 #[test]
-#[cfg_attr(debug_assertions, ignore)]
+#[cfg_attr(
+    debug_assertions,
+    ignore = "heavy: 222 four-input classes by SAT; runs in release builds (cargo test --release)"
+)]
 fn four_input_costs_over_the_full_binary_basis_match_knuth() {
     // Knuth, TAOCP Vol. 4A, section 7.1.2 (from memory, via PROVENANCE.md):
     // minimum two-input gate counts of all 65536 four-input functions with

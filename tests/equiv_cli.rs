@@ -1,7 +1,9 @@
 //! `ribbonmap equiv` from the outside: exit codes, JSON fields and errors
-//! (DESIGN.md contract). Netlists: the ISCAS-85 c17 pair
+//! (docs/exit-codes.md, docs/json-output.md). Netlists: the ISCAS-85 c17 pair
 //! (tests/data/reference/netlists/iscas85, circuitgraph 0.2.1 via
 //! PROVENANCE.md) and small variants of it written here.
+
+mod cache_support;
 
 use assert_cmd::Command;
 use std::path::PathBuf;
@@ -13,7 +15,9 @@ fn reference(name: &str) -> PathBuf {
 }
 
 fn ribbonmap() -> Command {
-    Command::cargo_bin("ribbonmap").unwrap()
+    let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.env("RIBBONMAP_CACHE_DIR", cache_support::dir());
+    cmd
 }
 
 /// c17 with gate NAND2_5 turned into an AND (output N22 changes).

@@ -1,11 +1,14 @@
 //! `ribbonmap exact` end to end: JSON contract fields, netlist re-simulated
 //! against the requested function, bad input.
 
+mod cache_support;
+
 use assert_cmd::Command;
 
 fn exact(args: &[&str]) -> assert_cmd::assert::Assert {
     Command::cargo_bin("ribbonmap")
         .unwrap()
+        .env("RIBBONMAP_CACHE_DIR", cache_support::dir())
         .arg("exact")
         .args(args)
         .assert()

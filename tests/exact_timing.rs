@@ -10,7 +10,7 @@ use ribbonmap::library::Library;
 use std::time::Instant;
 
 #[test]
-#[ignore]
+#[ignore = "timing report, not a check: cargo test --release --test exact_timing -- --ignored --nocapture"]
 fn slowest_four_input_classes() {
     let gates: Vec<GateSpec> = (0..16u64)
         .map(|t| GateSpec::new(format!("f{t:X}"), 2, t, 1.0))
@@ -36,7 +36,7 @@ fn slowest_four_input_classes() {
 }
 
 #[test]
-#[ignore]
+#[ignore = "timing report, not a check: cargo test --release --test exact_timing -- --ignored --nocapture"]
 fn ribbon3_four_input_coverage_cold_and_cached() {
     let dir = tempfile::tempdir().unwrap();
     std::env::set_var("RIBBONMAP_CACHE_DIR", dir.path());

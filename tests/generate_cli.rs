@@ -1,12 +1,16 @@
 //! `ribbonmap generate` driven as a binary: output to standard output and to
 //! files, the format following the extension, and exit code 2 with a
-//! one-line error for bad families, styles and widths (DESIGN.md exit codes).
+//! one-line error for bad families, styles and widths (docs/exit-codes.md).
+
+mod cache_support;
 
 use assert_cmd::Command;
 use predicates::prelude::*;
 
 fn ribbonmap() -> Command {
-    Command::cargo_bin("ribbonmap").unwrap()
+    let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.env("RIBBONMAP_CACHE_DIR", cache_support::dir());
+    cmd
 }
 
 #[test]

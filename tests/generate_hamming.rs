@@ -74,6 +74,31 @@ fn single_errors_are_corrected() {
         // Every code word passes the independent syndrome check, and distinct
         // data give distinct code words.
         assert!(codes.iter().all(|&c| is_codeword(c, n)), "({n},{k})");
+        // Distinct data words (random ones may repeat) give distinct code
+        // words.
+        let mut pairs: Vec<(u128, u128)> =
+            data.iter().copied().zip(codes.iter().copied()).collect();
+        pairs.sort_unstable();
+        pairs.dedup();
+        let mut distinct_codes: Vec<u128> = pairs.iter().map(|p| p.1).collect();
+        distinct_codes.sort_unstable();
+        distinct_codes.dedup();
+        assert_eq!(
+            distinct_codes.len(),
+            pairs.len(),
+            "({n},{k}): equal code words"
+        );
+        // Exhaustive codes: the minimum distance of a Hamming code is 3
+        // (common practice), checked over every pair of code words.
+        if k <= 11 {
+            let least = codes
+                .iter()
+                .enumerate()
+                .flat_map(|(i, &x)| codes[i + 1..].iter().map(move |&y| (x ^ y).count_ones()))
+                .min()
+                .unwrap();
+            assert_eq!(least, 3, "({n},{k}) minimum distance");
+        }
         // Received words: unchanged and every single-bit flip.
         let mut received = Vec::new();
         let mut expected = Vec::new();

@@ -1,6 +1,8 @@
 //! Broken library files in tests/data/bad-libraries are rejected, each with
 //! the offending cell and field named, both through the API and through
-//! `ribbonmap library check` (exit code 1, DESIGN.md contract).
+//! `ribbonmap library check` (exit code 1, docs/exit-codes.md).
+
+mod cache_support;
 
 use assert_cmd::Command;
 use ribbonmap::library::Library;
@@ -167,6 +169,7 @@ fn all_problems_are_listed() {
         );
     }
     let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.env("RIBBONMAP_CACHE_DIR", cache_support::dir());
     let out = cmd
         .args(["library", "check"])
         .arg(bad("many-problems"))
@@ -188,6 +191,7 @@ fn all_problems_are_listed() {
 fn check_exits_one_for_every_broken_file() {
     for &(file, cell, _, _) in CASES {
         let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+        cmd.env("RIBBONMAP_CACHE_DIR", cache_support::dir());
         let out = cmd
             .args(["library", "check"])
             .arg(bad(file))
@@ -210,14 +214,17 @@ fn check_exit_codes_for_sound_and_unreadable_files() {
     let good = dir.path().join("good.json");
     std::fs::write(&good, ribbonmap::library::builtin_text("ribbon3").unwrap()).unwrap();
     let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.env("RIBBONMAP_CACHE_DIR", cache_support::dir());
     cmd.args(["library", "check"]).arg(&good).assert().code(0);
     let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.env("RIBBONMAP_CACHE_DIR", cache_support::dir());
     cmd.args(["library", "check"])
         .arg(dir.path().join("absent.json"))
         .assert()
         .code(2);
     // --format json lists the problems with cell and field.
     let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.env("RIBBONMAP_CACHE_DIR", cache_support::dir());
     let out = cmd
         .args(["library", "check", "--format", "json"])
         .arg(bad("negative-area"))

@@ -58,15 +58,180 @@ fn a_nand_alone_is_complete_and_monotone_sets_are_not() {
 }
 
 #[test]
-fn round_trip_of_every_builtin_text() {
+fn every_builtin_library_matches_its_json_text_read_independently() {
+    // The loaded library is compared with the embedded JSON text as
+    // serde_json alone reads it, and each cell's truth table with the
+    // function text evaluated by the small evaluator below (written for
+    // this test; rows follow docs/library-format.md: row r gives input k
+    // the value of bit k of r).
     for name in Library::builtin_names() {
         let text = ribbonmap::library::builtin_text(name).unwrap();
-        let a = Library::from_json_str(text, "a").unwrap();
-        assert_eq!(Some(a.clone()), Library::builtin(name));
-        // Each cell's NPN class is consistent with its function.
-        for c in &a.cells {
-            let (canon, t) = c.npn();
-            assert_eq!(t.apply(c.truth, c.arity()), canon);
+        let json: serde_json::Value = serde_json::from_str(text).unwrap();
+        let lib = Library::builtin(name).unwrap();
+        assert_eq!(lib.name, json["name"].as_str().unwrap());
+        assert_eq!(lib.units.area, json["units"]["area"].as_str().unwrap());
+        assert_eq!(lib.units.delay, json["units"]["delay"].as_str().unwrap());
+        assert_eq!(
+            lib.primary_output_load,
+            json["primary_output_load"].as_f64().unwrap_or(1.0)
+        );
+        assert_eq!(lib.supply_v, json["supply_v"].as_f64());
+        let cells = json["cells"].as_array().unwrap();
+        assert_eq!(lib.cells.len(), cells.len(), "{name}");
+        for (cell, j) in lib.cells.iter().zip(cells) {
+            let what = format!("{name}/{}", cell.name);
+            assert_eq!(cell.name, j["name"].as_str().unwrap(), "{what}");
+            let inputs: Vec<&str> = j["inputs"]
+                .as_array()
+                .unwrap()
+                .iter()
+                .map(|v| v.as_str().unwrap())
+                .collect();
+            assert_eq!(cell.inputs, inputs, "{what}");
+            assert_eq!(cell.area, j["area"].as_f64().unwrap(), "{what}");
+            assert_eq!(
+                cell.delay.intrinsic,
+                j["delay"]["intrinsic"].as_f64().unwrap(),
+                "{what}"
+            );
+            assert_eq!(
+                cell.delay.per_load,
+                j["delay"]["per_load"].as_f64().unwrap(),
+                "{what}"
+            );
+            assert_eq!(
+                cell.input_load,
+                j["input_load"].as_f64().unwrap_or(1.0),
+                "{what}"
+            );
+            assert_eq!(
+                cell.switch_energy,
+                j["switch_energy"].as_f64().unwrap_or(0.0),
+                "{what}"
+            );
+            assert_eq!(
+                u64::from(cell.devices),
+                j["devices"].as_u64().unwrap_or(0),
+                "{what}"
+            );
+            match (&cell.leakage, &j["leakage"]) {
+                (Leakage::Constant(v), serde_json::Value::Number(n)) => {
+                    assert_eq!(Some(*v), n.as_f64(), "{what}")
+                }
+                (Leakage::Constant(v), serde_json::Value::Null) => assert_eq!(*v, 0.0, "{what}"),
+                (got, want) => panic!("{what}: leakage {got:?} from {want}"),
+            }
+            let function = j["function"].as_str().unwrap();
+            assert_eq!(
+                cell.truth,
+                eval::truth_table(function, &inputs),
+                "{what}: {function}"
+            );
+        }
+        let storage = json["storage"].as_array().map_or(0, Vec::len);
+        assert_eq!(lib.storage.len(), storage, "{name}");
+    }
+}
+
+#[test]
+fn independent_evaluator_by_hand() {
+    // Hand-written truth tables (row r: input k is bit k of r).
+    assert_eq!(eval::truth_table("a & b", &["a", "b"]), 0b1000);
+    assert_eq!(eval::truth_table("!(a | b)", &["a", "b"]), 0b0001);
+    assert_eq!(eval::truth_table("!((a & b) | c)", &["a", "b", "c"]), 0x07);
+    assert_eq!(eval::truth_table("maj(a, b, c)", &["a", "b", "c"]), 0xE8);
+    assert_eq!(eval::truth_table("a ^ b ^ c", &["a", "b", "c"]), 0x96);
+}
+
+/// A recursive-descent evaluator of the cell-function text, written for
+/// this test and sharing nothing with `ribbonmap::truth::expr`: `!`/`~`,
+/// `&`, `^`, `|` (in falling precedence, C order), parentheses and
+/// `maj(x, y, z)`.
+mod eval {
+    pub fn truth_table(text: &str, inputs: &[&str]) -> u64 {
+        let mut table = 0;
+        for row in 0..1u64 << inputs.len() {
+            let mut p = Parser {
+                chars: text.chars().filter(|c| !c.is_whitespace()).collect(),
+                at: 0,
+                inputs,
+                row,
+            };
+            let value = p.or();
+            assert_eq!(p.at, p.chars.len(), "trailing text in {text}");
+            table |= u64::from(value) << row;
+        }
+        table
+    }
+
+    struct Parser<'a> {
+        chars: Vec<char>,
+        at: usize,
+        inputs: &'a [&'a str],
+        row: u64,
+    }
+
+    impl Parser<'_> {
+        fn eat(&mut self, c: char) -> bool {
+            let hit = self.chars.get(self.at) == Some(&c);
+            self.at += usize::from(hit);
+            hit
+        }
+        fn or(&mut self) -> bool {
+            let mut v = self.xor();
+            while self.eat('|') {
+                v |= self.xor();
+            }
+            v
+        }
+        fn xor(&mut self) -> bool {
+            let mut v = self.and();
+            while self.eat('^') {
+                v ^= self.and();
+            }
+            v
+        }
+        fn and(&mut self) -> bool {
+            let mut v = self.unary();
+            while self.eat('&') {
+                v &= self.unary();
+            }
+            v
+        }
+        fn unary(&mut self) -> bool {
+            if self.eat('!') || self.eat('~') {
+                return !self.unary();
+            }
+            if self.eat('(') {
+                let v = self.or();
+                assert!(self.eat(')'));
+                return v;
+            }
+            let start = self.at;
+            while self
+                .chars
+                .get(self.at)
+                .is_some_and(|c| c.is_alphanumeric() || *c == '_')
+            {
+                self.at += 1;
+            }
+            let word: String = self.chars[start..self.at].iter().collect();
+            if word == "maj" {
+                assert!(self.eat('('));
+                let x = self.or();
+                assert!(self.eat(','));
+                let y = self.or();
+                assert!(self.eat(','));
+                let z = self.or();
+                assert!(self.eat(')'));
+                return (x & y) | (x & z) | (y & z);
+            }
+            let k = self
+                .inputs
+                .iter()
+                .position(|&i| i == word)
+                .unwrap_or_else(|| panic!("unknown name {word:?}"));
+            self.row >> k & 1 == 1
         }
     }
 }

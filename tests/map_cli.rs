@@ -1,10 +1,14 @@
-//! `ribbonmap map` from the command line: JSON contract fields (DESIGN.md),
+//! `ribbonmap map` from the command line: JSON contract fields (docs/json-output.md),
 //! written netlists, and exit code 2 on bad input.
+
+mod cache_support;
 
 use assert_cmd::Command;
 
 fn ribbonmap() -> Command {
-    Command::cargo_bin("ribbonmap").unwrap()
+    let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.env("RIBBONMAP_CACHE_DIR", cache_support::dir());
+    cmd
 }
 
 #[test]
@@ -49,10 +53,27 @@ fn json_report_has_the_contract_fields() {
     assert_eq!(v["goal"], "area");
     // `--verify full` is the default: the report must say the mapping was proven.
     assert_eq!(v["verified"], "proven");
-    // 8-bit ripple-carry adder (ariths-gen, via PROVENANCE.md): 2n = 16 cells at most.
-    assert!(v["cell_count"].as_u64().unwrap() <= 16);
+    // 8-bit ripple-carry adder (ariths-gen, via PROVENANCE.md), by hand:
+    // a half adder at bit 0 (xor2 + and2) and seven full adders (xor3 +
+    // maj3 each, ribbon3's sum and carry cells): 16 cells, area
+    // 72 + 60 + 7 * (120 + 110) = 1742 nm2 (libraries/ribbon3.json).
+    assert_eq!(v["cell_count"], 16);
+    assert_eq!(
+        v["cells"],
+        serde_json::json!({"and2": 1, "xor2": 1, "maj3": 7, "xor3": 7}),
+        "{v}"
+    );
+    assert_eq!(v["area"], 1742.0);
+    assert_eq!(v["units"]["area"], "nm2");
+    // The written netlist holds the same instances.
     let text = std::fs::read_to_string(&out).unwrap();
-    assert!(text.contains("maj3"));
+    for (cell, n) in [("and2", 1), ("xor2", 1), ("maj3", 7), ("xor3", 7)] {
+        let found = text
+            .lines()
+            .filter(|l| l.trim_start().starts_with(&format!("{cell} ")))
+            .count();
+        assert_eq!(found, n, "{cell} instances in\n{text}");
+    }
 }
 
 #[test]

@@ -82,10 +82,26 @@ fn iscas85_areas_against_the_commercial_mapping() {
     let mean = (log_sum / CIRCUITS.len() as f64).exp();
     let plain_mean = (log_plain / CIRCUITS.len() as f64).exp();
     eprintln!("{table}geometric mean ratio {mean:.3} (without optimisation {plain_mean:.3})");
-    // Regression bounds on the measured ratios (0.959 with optimisation,
-    // 1.046 without, when this test was last changed).
-    assert!(mean <= 0.965, "geometric mean ratio {mean:.3}");
-    assert!(plain_mean <= 1.08, "geometric mean ratio {plain_mean:.3}");
+    // Outside figure: ratio 1.0 is the area of the commercial re-synthesis
+    // (the cNNNg.v files, circuitgraph 0.2.1 via PROVENANCE.md), i.e. "at
+    // least as small as a commercial flow" would be mean <= 1.0.
+    // The two bounds below are REGRESSION BOUNDS taken from this code's own
+    // past output (measured 0.959 with optimisation, 1.046 without, when
+    // this test was last changed), not outside facts: they catch a quality
+    // loss, they do not prove quality. Only the first one is under the
+    // outside figure.
+    assert!(
+        mean <= 0.965,
+        "geometric mean ratio {mean:.3} (regression bound)"
+    );
+    assert!(
+        plain_mean <= 1.08,
+        "geometric mean ratio {plain_mean:.3} (regression bound)"
+    );
+    assert!(
+        mean < 1.0,
+        "optimised mapping larger than the commercial one: {mean:.3} (outside figure)"
+    );
 }
 
 #[test]

@@ -3,6 +3,8 @@
 //! input pattern, at most six inputs), keeps its ports and storage elements,
 //! and removes redundancy that Boolean algebra says is there.
 
+mod cache_support;
+
 use proptest::prelude::*;
 use ribbonmap::network::{Lit, Network, SplitMix64};
 use ribbonmap::optimize::rewrite::{rewrite, RewriteOptions};
@@ -198,6 +200,7 @@ fn map_command_optimises_on_request_and_proves_the_result() {
     let run = |extra: &[&str]| {
         let out = assert_cmd::Command::cargo_bin("ribbonmap")
             .unwrap()
+            .env("RIBBONMAP_CACHE_DIR", cache_support::dir())
             .args([
                 "map",
                 "tests/data/reference/netlists/iscas85/c432.v",
@@ -219,5 +222,8 @@ fn map_command_optimises_on_request_and_proves_the_result() {
     let (plain, _) = run(&[]);
     let (optimised, json) = run(&["--restructure"]);
     assert!(optimised < plain, "{optimised} >= {plain}");
-    assert!(json["seconds"]["restructure"].as_f64().unwrap() > 0.0);
+    // The optimisation phase is reported in seconds (no assertion on its
+    // value: wall-clock time is not a test result).
+    let seconds = json["seconds"]["restructure"].as_f64().unwrap();
+    assert!(seconds.is_finite() && seconds >= 0.0, "{seconds}");
 }

@@ -6,6 +6,8 @@
 //! before they are compared; every mapping is then proven equivalent to its
 //! benchmark by the command itself (`verified: proven`).
 
+mod cache_support;
+
 use assert_cmd::Command;
 use ribbonmap::generate::{generate, Family, Params};
 use ribbonmap::network::{Network, SplitMix64};
@@ -77,6 +79,7 @@ fn write(dir: &Path, name: &str, net: &Network) -> PathBuf {
 
 fn compare(paths: &[PathBuf], extra: &[&str]) -> std::process::Output {
     let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.env("RIBBONMAP_CACHE_DIR", cache_support::dir());
     cmd.arg("compare").args(paths);
     for lib in LIBRARIES {
         cmd.args(["--lib", lib]);
@@ -193,7 +196,18 @@ fn majority_gates_pay_off_on_adders_and_every_format_parses() {
     for line in &lines {
         assert_eq!(csv_fields(line).len(), columns, "{line}");
     }
-    assert!(lines[1..].iter().all(|l| csv_fields(l)[3] != "proven"));
+    // Column 4 is `verified` (docs/json-output.md): every benchmark row was
+    // checked by simulation only, and the geometric-mean rows are no
+    // circuits, so their field is empty.
+    assert_eq!(csv_fields(lines[0])[3], "verified");
+    let data_rows = paths.len() * LIBRARIES.len();
+    for line in &lines[1..=data_rows] {
+        assert_eq!(csv_fields(line)[3], "simulated", "{line}");
+    }
+    for line in &lines[data_rows + 1..] {
+        assert_eq!(csv_fields(line)[0], "geomean", "{line}");
+        assert_eq!(csv_fields(line)[3], "", "{line}");
+    }
 
     // LaTeX: a booktabs tabular with escaped underscores.
     let tex = stdout_of(&compare(&paths, &["--format", "latex", "--verify", "none"]));
@@ -226,12 +240,14 @@ fn bad_inputs_exit_with_two() {
     let bad = dir.path().join("missing.blif");
     let out = Command::cargo_bin("ribbonmap")
         .unwrap()
+        .env("RIBBONMAP_CACHE_DIR", cache_support::dir())
         .args(["compare", bad.to_str().unwrap(), "--lib", "ribbon3"])
         .output()
         .unwrap();
     assert_eq!(out.status.code(), Some(2));
     let out = Command::cargo_bin("ribbonmap")
         .unwrap()
+        .env("RIBBONMAP_CACHE_DIR", cache_support::dir())
         .args(["compare", bad.to_str().unwrap(), "--lib", "no-such-library"])
         .output()
         .unwrap();

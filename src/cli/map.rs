@@ -132,7 +132,23 @@ pub fn run(args: Args) -> CmdResult {
     for (k, v) in &outcome.seconds {
         seconds.insert(k.clone(), *v);
     }
-    let netlist = outcome.netlist;
+    let mut netlist = outcome.netlist;
+    // Testability hook for the exit code of an internal error (used by
+    // tests/cli_behaviour.rs): swap the first instance's cell for another
+    // cell of the same arity with a different function, so verification
+    // must fail.
+    if std::env::var_os("RIBBONMAP_TEST_BREAK_MAPPING").is_some() {
+        if let Some(first) = netlist.instances.first_mut() {
+            let cell = &lib.cells[first.cell as usize];
+            if let Some(other) = lib
+                .cells
+                .iter()
+                .position(|c| c.arity() == cell.arity() && c.truth != cell.truth)
+            {
+                first.cell = other as u32;
+            }
+        }
+    }
 
     let t = Instant::now();
     let mode = match args.verify {

@@ -160,6 +160,9 @@ mod tests {
 
     #[test]
     fn optimum_xor_on_nand_nor_library_beats_four_nands() {
+        // Keep the disk cache out of the user's cache folder.
+        let cache = tempfile::tempdir().expect("temporary folder");
+        std::env::set_var("RIBBONMAP_CACHE_DIR", cache.path());
         // Four NAND2 make a two-input XOR (common practice), 16 transistors
         // with the library's areas; the optimum may not be larger.
         let lib = Library::builtin("nand-nor-inv").expect("built-in");
