@@ -26,6 +26,7 @@ macro_rules! outln {
     }};
 }
 
+mod characterize;
 pub mod common;
 mod compare;
 mod coverage;
@@ -114,6 +115,8 @@ enum Command {
     Generate(generate::Args),
     /// List, show or check cell libraries.
     Library(library::Args),
+    /// Derive a cell library from a device kit's conductance tables.
+    Characterize(characterize::Args),
 }
 
 /// Writes `text` to standard output. When the reader has closed the pipe
@@ -152,6 +155,7 @@ pub fn main() -> ExitCode {
         Command::Merge(a) => merge::run(a),
         Command::Generate(a) => generate::run(a),
         Command::Library(a) => library::run(a),
+        Command::Characterize(a) => characterize::run(a),
     };
     match result {
         Ok(code) => ExitCode::from(code),
