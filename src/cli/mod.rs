@@ -38,6 +38,7 @@ mod library;
 mod map;
 mod merge;
 pub mod netlist_args;
+mod spice;
 mod sweep;
 
 use clap::{Parser, Subcommand};
@@ -117,6 +118,8 @@ enum Command {
     Library(library::Args),
     /// Derive a cell library from a device kit's conductance tables.
     Characterize(characterize::Args),
+    /// Write a SPICE deck of a netlist mapped on a characterised library.
+    Spice(spice::Args),
 }
 
 /// Writes `text` to standard output. When the reader has closed the pipe
@@ -156,6 +159,7 @@ pub fn main() -> ExitCode {
         Command::Generate(a) => generate::run(a),
         Command::Library(a) => library::run(a),
         Command::Characterize(a) => characterize::run(a),
+        Command::Spice(a) => spice::run(a),
     };
     match result {
         Ok(code) => ExitCode::from(code),

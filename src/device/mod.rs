@@ -15,6 +15,7 @@ pub mod characterize;
 pub mod kit;
 pub mod library_write;
 pub mod report;
+pub mod spice;
 pub mod table;
 pub mod table_csv;
 pub mod table_json;
