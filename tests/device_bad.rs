@@ -120,14 +120,14 @@ fn negative_value_in_a_json_table() {
 
 #[test]
 fn both_ribbons_conduct_named_with_the_static_current() {
-    // Row a=1: Gu = 5 µS and Gd = 10 µS, both at or above their ribbons'
-    // geometric middles; I = 0.2 V · 5 · 10 / 15 µS = 666.7 nA.
-    let up = "a,g[uS]\n0,10\n0.2,5\n";
+    // Row a=1: Gu = 20 µS and Gd = 10 µS, both at or above their ribbons'
+    // geometric middles; I = 0.2 V · 20 · 10 / 30 µS = 1333.3 nA.
+    let up = "a,g[uS]\n0,10\n0.2,20\n";
     let kit = kit_text("", "[\"a\"]", "up.csv", "down.csv");
     let down = "a,g[uS]\n0,0.1\n0.2,10\n";
     let (stderr, dir) = characterize_fails(&kit, &[("up.csv", up), ("down.csv", down)]);
     expect(&stderr, &dir.join("kit.json"), 7, "both conduct on row a=1");
-    assert!(stderr.contains("666.6667 nA"), "{stderr}");
+    assert!(stderr.contains("1333.3333 nA"), "{stderr}");
 }
 
 #[test]
@@ -179,16 +179,21 @@ fn unknown_kit_field() {
 }
 
 #[test]
-fn the_good_inverter_characterises() {
+fn a_good_nand_characterises() {
+    // NAND alone is functionally complete, so its library loads.
+    let up = "a,b,g[uS]\n0,0,10\n0.2,0,10\n0,0.2,10\n0.2,0.2,0.1\n";
+    let down = "a,b,g[uS]\n0,0,0.1\n0.2,0,0.1\n0,0.2,0.1\n0.2,0.2,10\n";
     let dir = tempfile::tempdir().unwrap();
-    std::fs::write(dir.path().join("up.csv"), INV_UP).unwrap();
-    std::fs::write(dir.path().join("down.csv"), INV_DOWN).unwrap();
+    std::fs::write(dir.path().join("up.csv"), up).unwrap();
+    std::fs::write(dir.path().join("down.csv"), down).unwrap();
     let kit = dir.path().join("kit.json");
-    std::fs::write(
-        &kit,
-        kit_text("\"function\": \"!a\", ", "[\"a\"]", "up.csv", "down.csv"),
-    )
-    .unwrap();
+    let text = kit_text(
+        "\"function\": \"!(a & b)\", ",
+        "[\"a\", \"b\"]",
+        "up.csv",
+        "down.csv",
+    );
+    std::fs::write(&kit, text).unwrap();
     Command::cargo_bin("ribbonmap")
         .unwrap()
         .arg("characterize")
@@ -198,4 +203,11 @@ fn the_good_inverter_characterises() {
         .env("RIBBONMAP_CACHE_DIR", dir.path())
         .assert()
         .success();
+}
+
+#[test]
+fn an_incomplete_kit_is_bad_input() {
+    let kit = kit_text("", "[\"a\"]", "up.csv", "down.csv");
+    let (stderr, _) = characterize_fails(&kit, &[("up.csv", INV_UP), ("down.csv", INV_DOWN)]);
+    assert!(stderr.contains("not functionally complete"), "{stderr}");
 }

@@ -33,9 +33,18 @@ pub fn run(args: Args) -> CmdResult {
         _ => PathBuf::from("."),
     };
     let text = crate::device::library_write::library_text(&ch, &dir);
-    // The written library must load: a failure here is a bug.
-    crate::library::Library::from_json_str(&text, &args.output.display().to_string())
-        .map_err(|e| CliError::Internal(format!("the characterised library does not load: {e}")))?;
+    // The written library must load; it fails when the kit's cells cannot
+    // form a usable library (such as a set that is not functionally
+    // complete), which is a property of the kit.
+    crate::library::Library::from_json_str(&text, &args.output.display().to_string()).map_err(
+        |e| {
+            CliError::Input(format!(
+                "{}: the kit does not make a valid library: {}",
+                args.kit.display(),
+                e.lines().first().cloned().unwrap_or_default()
+            ))
+        },
+    )?;
     write(&args.output, &text)?;
     if let Some(report) = &args.report {
         let html = crate::device::report::report_html(&ch);

@@ -104,7 +104,7 @@ pub fn library_json(ch: &Characterization, library_dir: &Path) -> Value {
         .iter()
         .map(|c| {
             let n = c.kit_cell.inputs.len();
-            let digits = ((1usize << n) + 3) / 4;
+            let digits = (1usize << n).div_ceil(4);
             let leakage: Vec<f64> = c
                 .rows
                 .iter()

@@ -363,9 +363,9 @@ pub fn first_heat_map_svg(ch: &Characterization) -> String {
             size * i as f64
         );
     }
-    let _ = write!(
+    let _ = writeln!(
         out,
-        "<g transform=\"translate(0 {size})\">{legend_svg}</g></svg>\n"
+        "<g transform=\"translate(0 {size})\">{legend_svg}</g></svg>"
     );
     out
 }

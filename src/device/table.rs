@@ -155,8 +155,8 @@ pub(crate) fn table_from_points(
     };
     let mut index = vec![0usize; n];
     for p in points {
-        for k in 0..n {
-            index[k] = table.axes[k]
+        for (k, at) in index.iter_mut().enumerate() {
+            *at = table.axes[k]
                 .binary_search_by(|x| x.total_cmp(&p.volts[k]))
                 .unwrap_or(0);
         }

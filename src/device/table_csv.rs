@@ -205,7 +205,9 @@ mod tests {
         let text = "# invented\na,b,g[nS]\n0,0,1\n0.2,0,2\n0,0.2,3\n0.2,0.2,4\n";
         let t = parse_csv_table(text, "t.csv").unwrap();
         assert_eq!(t.inputs, vec!["a", "b"]);
-        assert_eq!(t.values, vec![1e-9, 2e-9, 3e-9, 4e-9]);
+        for (got, want) in t.values.iter().zip([1e-9, 2e-9, 3e-9, 4e-9]) {
+            assert!((got - want).abs() < 1e-21, "{got} {want}");
+        }
         let shuffled = "a,b,g[nS]\n0.2,0.2,4\n0,0.2,3\n0,0,1\n0.2,0,2\n";
         assert_eq!(parse_csv_table(shuffled, "t.csv").unwrap().values, t.values);
     }
