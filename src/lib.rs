@@ -2,6 +2,7 @@
 //! gates and reports what those gates buy on real circuits.
 
 pub mod cli;
+pub mod device;
 pub mod diag;
 pub mod equiv;
 pub mod exact;

@@ -45,8 +45,9 @@ pub struct Args {
     /// What to optimise.
     #[arg(long, value_enum, default_value = "balanced")]
     pub goal: GoalArg,
-    /// Write the mapped netlist here (.v or .blif).
-    #[arg(short = 'o', long = "output", value_name = "OUT.v|OUT.blif")]
+    /// Write the mapped netlist here (.v or .blif), or a SPICE deck of it
+    /// (.cir, characterised libraries only; all inputs 0, tables beside it).
+    #[arg(short = 'o', long = "output", value_name = "OUT.v|OUT.blif|OUT.cir")]
     pub output: Option<PathBuf>,
     /// How to check the result against the input.
     #[arg(long, value_enum, default_value = "full")]
@@ -99,9 +100,11 @@ pub fn run(args: Args) -> CmdResult {
         Some(p) => match p.extension().and_then(|e| e.to_str()) {
             Some("v") => Some(false),
             Some("blif") => Some(true),
+            // A SPICE deck (characterised libraries only), written below.
+            Some("cir") => None,
             _ => {
                 return Err(CliError::Input(format!(
-                    "{}: cannot tell the output format (expected a .v or .blif file name)",
+                    "{}: cannot tell the output format (expected a .v, .blif or .cir file name)",
                     p.display()
                 )))
             }
@@ -174,6 +177,16 @@ pub fn run(args: Args) -> CmdResult {
         };
         crate::fsutil::write_atomic(path, text.as_bytes())
             .map_err(|e| CliError::Input(format!("{}: cannot write: {e}", path.display())))?;
+    }
+    if let Some(path) = args.output.as_ref().filter(|_| out_kind.is_none()) {
+        let inputs = vec![false; netlist.inputs.len()];
+        super::spice::write_deck_file(
+            &netlist,
+            &lib,
+            &args.lib,
+            &crate::device::spice::Stimulus::Pattern(inputs),
+            path,
+        )?;
     }
     seconds.insert("write".to_string(), t.elapsed().as_secs_f64());
 

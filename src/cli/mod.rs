@@ -26,6 +26,7 @@ macro_rules! outln {
     }};
 }
 
+mod characterize;
 pub mod common;
 mod compare;
 mod coverage;
@@ -36,6 +37,7 @@ mod inspect;
 mod library;
 mod map;
 pub mod netlist_args;
+mod spice;
 mod study;
 mod tabulate;
 
@@ -120,6 +122,10 @@ enum Command {
     Generate(generate::Args),
     /// List, show or check cell libraries.
     Library(library::Args),
+    /// Derive a cell library from a device kit's conductance tables.
+    Characterize(characterize::Args),
+    /// Write a SPICE deck of a netlist mapped on a characterised library.
+    Spice(spice::Args),
 }
 
 /// Writes `text` to standard output. When the reader has closed the pipe
@@ -166,6 +172,8 @@ pub fn main() -> ExitCode {
         }
         Command::Generate(a) => generate::run(a),
         Command::Library(a) => library::run(a),
+        Command::Characterize(a) => characterize::run(a),
+        Command::Spice(a) => spice::run(a),
     };
     match result {
         Ok(code) => ExitCode::from(code),

@@ -9,6 +9,7 @@
 //! cell set that is not functionally complete with free constants.
 
 use super::completeness::{missing_basics, SmallFunction};
+use super::electrical::{check_electrical, DerivedFrom, Electrical};
 use super::error::{LibraryError, LibraryProblem};
 use super::positions::Positions;
 use super::{Cell, DelayModel, Leakage, Library, StorageCell, Units};
@@ -34,6 +35,7 @@ const LIBRARY_FIELDS: &[&str] = &[
     "primary_output_load",
     "cells",
     "storage",
+    "derived_from",
 ];
 const CELL_FIELDS: &[&str] = &[
     "name",
@@ -47,6 +49,7 @@ const CELL_FIELDS: &[&str] = &[
     "switch_energy",
     "leakage",
     "devices",
+    "electrical",
 ];
 const DELAY_FIELDS: &[&str] = &["intrinsic", "per_load"];
 const UNITS_FIELDS: &[&str] = &["area", "delay", "energy", "power"];
@@ -59,6 +62,7 @@ impl Library {
         let mut reader = Reader {
             positions: Positions::default(),
             problems: Vec::new(),
+            supply_v: None,
         };
         let root: Value = match serde_json::from_str(text) {
             Ok(v) => v,
@@ -149,6 +153,8 @@ fn is_identifier(name: &str) -> bool {
 struct Reader {
     positions: Positions,
     problems: Vec<LibraryProblem>,
+    /// The library's supply (electrical blocks are checked against it).
+    supply_v: Option<f64>,
 }
 
 /// Where a value sits: its path in the document, the cell it belongs to and
@@ -311,6 +317,16 @@ impl Reader {
                 }
                 None => 1.0,
             };
+
+        if let Some(value) = map.get("derived_from") {
+            if let Err(e) = serde_json::from_value::<DerivedFrom>(value.clone()) {
+                self.problem(
+                    &child(&top, "derived_from"),
+                    format!("not a derived_from record (kit, kit_sha256, tool, logic_low_v, logic_high_v, unit_load_af): {e}"),
+                );
+            }
+        }
+        self.supply_v = supply_v;
 
         let mut cells = Vec::new();
         let mut names: HashSet<String> = HashSet::new();
@@ -553,6 +569,17 @@ impl Reader {
                 "a whole number of devices, zero or more",
             )
             .unwrap_or(0);
+        if let Some(value) = map.get("electrical") {
+            let esite = child(&site, "electrical");
+            match serde_json::from_value::<Electrical>(value.clone()) {
+                Ok(e) => {
+                    for p in check_electrical(&e, &inputs, self.supply_v) {
+                        self.problem(&esite, p);
+                    }
+                }
+                Err(e) => self.problem(&esite, format!("not an electrical block: {e}")),
+            }
+        }
 
         if self.problems.len() != before {
             return None;

@@ -9,14 +9,16 @@
 //! into a [`LibraryError`]; `positions` finds lines and columns for those
 //! problems; [`completeness`] applies Post's criteria; `builtin` embeds the
 //! libraries in `libraries/` ([`Library::builtin`]); `hash` fingerprints a
-//! library's cells and costs ([`Library::content_hash`]).
+//! library's cells and costs ([`Library::content_hash`]); [`electrical`]
+//! checks and reads the optional electrical data of characterised libraries.
 
 mod builtin;
 pub mod completeness;
+pub mod electrical;
 mod error;
 mod hash;
 mod load;
-mod positions;
+pub(crate) mod positions;
 
 pub use builtin::builtin_text;
 pub use error::{LibraryError, LibraryProblem};

@@ -1,0 +1,129 @@
+//! `ribbonmap spice`: map a netlist onto a characterised library and write a
+//! SPICE deck (ngspice XSPICE table models, tables beside the deck) with a
+//! DC pattern or a step stimulus.
+
+use super::common::load_library;
+use super::{CliError, CmdResult, EXIT_OK};
+use crate::cli::netlist_args::NetlistArgs;
+use crate::device::spice::{load_models, write_deck, Stimulus};
+use crate::library::electrical::read_electrical;
+use crate::library::Library;
+use crate::mapper::{map, MapOptions};
+use crate::netlist::MappedNetlist;
+use std::path::{Path, PathBuf};
+
+/// Arguments of `ribbonmap spice`.
+#[derive(clap::Args, Debug)]
+pub struct Args {
+    /// The netlist (.blif, .v, .bench); it is mapped onto the library first.
+    pub netlist: PathBuf,
+    /// A characterised library file (written by `ribbonmap characterize`).
+    #[arg(long, value_name = "FILE")]
+    pub lib: String,
+    /// Write the deck here; the table files go beside it.
+    #[arg(short = 'o', long = "output", value_name = "DECK.cir")]
+    pub output: PathBuf,
+    /// Input values for a DC operating point, one 0/1 per primary input in
+    /// netlist order (default: all 0).
+    #[arg(long, value_name = "BITS", conflicts_with = "stimulus")]
+    pub pattern: Option<String>,
+    /// A step for a transient: FROM:TO, two patterns of input bits; the
+    /// inputs switch at 10 ps with 0.1 ps ramps.
+    #[arg(long, value_name = "FROM:TO")]
+    pub stimulus: Option<String>,
+    /// End of the transient in picoseconds.
+    #[arg(long, value_name = "PS", default_value_t = 200.0)]
+    pub stop_ps: f64,
+    /// How to read the netlist.
+    #[command(flatten)]
+    pub reading: NetlistArgs,
+}
+
+/// Parses a string of 0/1 characters.
+pub fn parse_bits(text: &str, what: &str) -> Result<Vec<bool>, CliError> {
+    text.chars()
+        .map(|c| match c {
+            '0' => Ok(false),
+            '1' => Ok(true),
+            _ => Err(CliError::Input(format!(
+                "{what} '{text}': expected only 0 and 1, found '{c}'"
+            ))),
+        })
+        .collect()
+}
+
+/// Writes the deck of `netlist` on `lib` (loaded from `lib_spec`) to
+/// `output`; shared with `map -o OUT.cir`.
+pub fn write_deck_file(
+    netlist: &MappedNetlist,
+    lib: &Library,
+    lib_spec: &str,
+    stimulus: &Stimulus,
+    output: &Path,
+) -> Result<(), CliError> {
+    let (text, dir, shown) = if let Some(text) = crate::library::builtin_text(lib_spec) {
+        (
+            text.to_string(),
+            PathBuf::from("libraries"),
+            format!("<builtin:{lib_spec}>"),
+        )
+    } else {
+        let path = Path::new(lib_spec);
+        let text = std::fs::read_to_string(path)
+            .map_err(|e| CliError::Input(format!("{lib_spec}: cannot read: {e}")))?;
+        let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
+        (text, dir, lib_spec.to_string())
+    };
+    let data = read_electrical(&text);
+    let models = load_models(lib, &data, &dir, &shown)?;
+    let stem = output
+        .file_stem()
+        .and_then(|s| s.to_str())
+        .unwrap_or("deck")
+        .to_string();
+    let deck = write_deck(netlist, lib, &models, stimulus, &stem, &[]).map_err(CliError::Input)?;
+    deck.save(output)
+        .map_err(|e| CliError::Input(format!("{}: cannot write: {e}", output.display())))
+}
+
+/// Runs the command.
+pub fn run(args: Args) -> CmdResult {
+    let lib = load_library(&args.lib)?;
+    let net = args.reading.read(&args.netlist, Some(&lib))?;
+    let netlist = map(&net, &lib, &MapOptions::default())
+        .map_err(|e| CliError::Input(format!("{}: cannot map: {e:?}", args.netlist.display())))?;
+    let width = netlist.inputs.len();
+    let stimulus = match (&args.pattern, &args.stimulus) {
+        (_, Some(step)) => {
+            let Some((from, to)) = step.split_once(':') else {
+                return Err(CliError::Input(format!(
+                    "--stimulus '{step}': expected FROM:TO, two patterns of input bits"
+                )));
+            };
+            Stimulus::Step {
+                from: parse_bits(from, "--stimulus")?,
+                to: parse_bits(to, "--stimulus")?,
+                step_ps: 10.0,
+                ramp_ps: 0.1,
+                stop_ps: args.stop_ps,
+            }
+        }
+        (Some(bits), None) => Stimulus::Pattern(parse_bits(bits, "--pattern")?),
+        (None, None) => Stimulus::Pattern(vec![false; width]),
+    };
+    write_deck_file(&netlist, &lib, &args.lib, &stimulus, &args.output)?;
+    outln!(
+        "deck      {} ({} cells, {} inputs: {}; tables beside it)\nrun       ngspice -b {}",
+        args.output.display(),
+        netlist.instances.len(),
+        width,
+        netlist
+            .inputs
+            .iter()
+            .map(|p| p.name.as_str())
+            .collect::<Vec<_>>()
+            .join(" "),
+        args.output.display()
+    );
+    Ok(EXIT_OK)
+}
