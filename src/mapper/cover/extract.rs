@@ -42,9 +42,25 @@ impl Cover<'_> {
         self.extract()
     }
 
+    /// [`Cover::into_netlist`], also returning the witness of every net: the
+    /// raw literal of the covered network it carries, or
+    /// [`crate::mapper::witness::NO_LIT`] (see [`crate::proof`]).
+    pub fn into_netlist_with_witness(mut self) -> (MappedNetlist, Vec<u32>) {
+        self.cost = Vec::new();
+        self.required = Vec::new();
+        self.fanout_estimate = Vec::new();
+        self.load = Vec::new();
+        self.extract_with_witness()
+    }
+
     /// Builds the mapped netlist of the current cover (call [`Cover::mark`]
     /// first).
     pub fn extract(&self) -> MappedNetlist {
+        self.extract_with_witness().0
+    }
+
+    /// [`Cover::extract`] with the witness of [`Cover::into_netlist_with_witness`].
+    pub fn extract_with_witness(&self) -> (MappedNetlist, Vec<u32>) {
         let net = self.net;
         let lib = self.lib;
         let mut out = MappedNetlist {
@@ -213,7 +229,13 @@ impl Cover<'_> {
                 kind: s.kind.clone(),
             });
         }
-        out
+        let mut witness = vec![crate::mapper::witness::NO_LIT; out.nets.len()];
+        for (lit, &n) in net_of.iter().enumerate() {
+            if n != NONE {
+                witness[n as usize] = lit as u32;
+            }
+        }
+        (out, witness)
     }
 
     /// Instantiates implementation `imp`; `leaf_nets[2 * var + complemented]`
