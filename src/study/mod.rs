@@ -18,6 +18,7 @@
 //!
 //! `ribbonmap compare`, `sweep` and `merge` are thin wrappers over these.
 
+pub mod activity;
 pub mod chart;
 pub mod evaluate;
 pub mod mapped_energy;
