@@ -14,5 +14,6 @@ pub mod mapper;
 pub mod netlist;
 pub mod network;
 pub mod optimize;
+pub mod proof;
 pub mod study;
 pub mod truth;

@@ -16,7 +16,7 @@
 //! The same pass lowers node kinds the library cannot match at all: XOR into
 //! AND/OR and majority into AND/OR, so every node has a match.
 
-use crate::network::{Lit, Network, NodeKind};
+use crate::network::{Lit, Network, NodeId, NodeKind};
 use std::cmp::Reverse;
 use std::collections::BinaryHeap;
 
@@ -121,6 +121,14 @@ impl Builder {
 /// Ports and storage are kept by name; the result computes the same
 /// functions.
 pub fn balance(net: &Network, opts: &BalanceOptions) -> Network {
+    balance_with_map(net, opts).0
+}
+
+/// [`balance`], also returning for every node of `net` the raw literal of
+/// the balanced network it became: the witness the proof checks (see
+/// [`crate::proof`]). Nodes folded into a tree, and nodes no output reads,
+/// get [`super::witness::NO_LIT`].
+pub fn balance_with_map(net: &Network, opts: &BalanceOptions) -> (Network, Vec<u32>) {
     let n = net.num_nodes();
     let fanout = net.fanout_counts();
     let reach = net.reachable();
@@ -243,5 +251,15 @@ pub fn balance(net: &Network, opts: &BalanceOptions) -> Network {
     }
     let mut out = b.out;
     out.connect_outputs_from(net, &map);
-    out
+    let mut witness: Vec<u32> = map.iter().map(|l| l.raw()).collect();
+    for (i, w) in witness.iter_mut().enumerate() {
+        let source = matches!(
+            net.kind(NodeId(i as u32)),
+            NodeKind::Const | NodeKind::Input
+        );
+        if !source && (!reach[i] || absorbed[i]) {
+            *w = super::witness::NO_LIT;
+        }
+    }
+    (out, witness)
 }

@@ -28,6 +28,7 @@ pub mod matches;
 pub mod optimum;
 pub mod small_truth;
 pub mod supergate;
+pub mod witness;
 
 pub use matches::MatchTable;
 
@@ -40,6 +41,7 @@ use indexmap::IndexMap;
 use small_truth::{majority, var};
 use std::sync::{Arc, Mutex, OnceLock};
 use std::time::Instant;
+use witness::{CoverWitness, CoveredOrigin};
 
 /// What the cover optimises.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default, serde::Serialize)]
@@ -133,6 +135,9 @@ pub struct MapOutcome {
     /// Peak heap bytes of the cover state (the cut store at its largest and
     /// the per-node arrays).
     pub cover_bytes: usize,
+    /// What every net implements, for the linear-time proof
+    /// ([`crate::proof::prove`]).
+    pub witness: CoverWitness,
 }
 
 /// Maps `net` onto `lib`.
@@ -222,8 +227,8 @@ pub fn map_detailed(
     }
     let keep_xor = table.has_function(var(0) ^ var(1));
     let keep_maj = table.has_function(majority(var(0), var(1), var(2)));
-    let optimized;
-    let net = if opts.optimize {
+    let mut optimized: Option<Network> = None;
+    if opts.optimize {
         // Candidates are scored by the area the mapper gives them.
         let plain = MapOptions {
             optimize: false,
@@ -231,27 +236,23 @@ pub fn map_detailed(
         };
         let score = |n: &Network| map(n, lib, &plain).map_or(f64::INFINITY, |m| m.area(lib));
         let oopts = crate::optimize::OptimizeOptions::for_library(lib);
-        optimized = crate::optimize::optimize_scored(net, &oopts, score).0;
-        &optimized
-    } else {
-        net
-    };
+        optimized = Some(crate::optimize::optimize_scored(net, &oopts, score).0);
+    }
+    let net = optimized.as_ref().unwrap_or(net);
     seconds.insert("restructure".to_string(), t.elapsed().as_secs_f64());
     let t = Instant::now();
     let (and_width, xor_width) = tree_widths(lib, opts.cut_size);
-    let balanced;
-    let subject = if opts.balance || !keep_xor || !keep_maj {
+    let mut balanced: Option<(Network, Vec<u32>)> = None;
+    if opts.balance || !keep_xor || !keep_maj {
         let bopts = BalanceOptions {
             and_width: if opts.balance { and_width } else { 2 },
             xor_width: if opts.balance { xor_width } else { 2 },
             keep_xor,
             keep_maj,
         };
-        balanced = balance::balance(net, &bopts);
-        &balanced
-    } else {
-        net
-    };
+        balanced = Some(balance::balance_with_map(net, &bopts));
+    }
+    let subject = balanced.as_ref().map_or(net, |(b, _)| b);
     seconds.insert("balance".to_string(), t.elapsed().as_secs_f64());
 
     let first = if opts.goal == Goal::Area {
@@ -295,13 +296,22 @@ pub fn map_detailed(
     cover.mark();
     let cover_bytes = cover.memory_bytes();
     let cuts = cover.cuts.len();
-    let netlist = cover.into_netlist();
+    let covered_nodes = subject.num_nodes();
+    let (netlist, net_lits) = cover.into_netlist_with_witness();
     seconds.insert("cover".to_string(), t.elapsed().as_secs_f64());
+    let origin = match (optimized, balanced) {
+        (None, None) => CoveredOrigin::Input,
+        (None, Some((covered, map))) => CoveredOrigin::Balanced { covered, map },
+        (Some(covered), None) | (Some(_), Some((covered, _))) => {
+            CoveredOrigin::Restructured { covered }
+        }
+    };
     Ok(MapOutcome {
         netlist,
         seconds,
-        covered_nodes: subject.num_nodes(),
+        covered_nodes,
         cuts,
         cover_bytes,
+        witness: CoverWitness { origin, net_lits },
     })
 }

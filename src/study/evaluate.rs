@@ -55,10 +55,9 @@ fn mapper_goal(goal: Goal) -> mapper::Goal {
     }
 }
 
-/// Checks `mapped` against `original` with the mapper's own check: in
-/// full mode a proof by the equivalence checker (falling back to simulation,
-/// and saying `simulated`, when a work limit stops it). A difference is an
-/// internal error: the mapper produced a wrong circuit.
+/// Checks `mapped` against `original` by simulation (or not at all); full
+/// proofs go through [`crate::proof::prove`]. A difference is an internal
+/// error: the mapper produced a wrong circuit.
 fn check(original: &Network, mapped: &Network, mode: VerifyMode) -> Result<Verified, StudyError> {
     let mode = match mode {
         VerifyMode::Full => netlist::VerifyMode::Full,
@@ -93,13 +92,21 @@ pub fn evaluate(
     }
     let mut seconds = IndexMap::new();
     let start = Instant::now();
-    let mapped = mapper::map(network, library, &map_options)
+    let outcome = mapper::map_detailed(network, library, &map_options)
         .map_err(|e| StudyError::Input(format!("{benchmark} on {}: {e}", library.name)))?;
+    let mapped = outcome.netlist;
     seconds.insert("map".to_string(), start.elapsed().as_secs_f64());
 
     let start = Instant::now();
-    let rebuilt = mapped.to_network(library);
-    let verified = check(network, &rebuilt, options.verify).map_err(|e| match e {
+    let verified = if options.verify == VerifyMode::Full {
+        // The mapper's witness proves its own output in linear time.
+        crate::proof::prove(network, &mapped, library, &outcome.witness)
+            .map(|(verified, _)| verified)
+            .map_err(|e| StudyError::Internal(format!("mapped circuit fails verification: {e}")))
+    } else {
+        check(network, &mapped.to_network(library), options.verify)
+    };
+    let verified = verified.map_err(|e| match e {
         StudyError::Internal(m) => {
             StudyError::Internal(format!("{benchmark} on {}: {m}", library.name))
         }

@@ -18,6 +18,7 @@
 //!
 //! `ribbonmap compare`, `study` and `tabulate` are thin wrappers over these.
 
+pub mod activity;
 pub mod chart;
 pub mod evaluate;
 pub mod jobs;

@@ -444,45 +444,6 @@ impl<'a> PatternSource<'a> {
     }
 }
 
-/// Evaluates a truth table on fanin words: Shannon expansion, variable 0
-/// first, `2^k - 1` multiplexers.
-#[inline]
-fn eval_truth(truth: u64, inputs: &[u64]) -> u64 {
-    let k = inputs.len();
-    let mut values = [0u64; 64];
-    let rows = 1usize << k;
-    for (r, v) in values.iter_mut().enumerate().take(rows) {
-        *v = if (truth >> r) & 1 == 1 { u64::MAX } else { 0 };
-    }
-    let mut len = rows;
-    for &x in inputs {
-        len /= 2;
-        for j in 0..len {
-            values[j] = (x & values[2 * j + 1]) | (!x & values[2 * j]);
-        }
-    }
-    values[0]
-}
-
-/// Adds to `counts[r]` how many valid patterns put row r on the inputs.
-fn count_rows(inputs: &[u64], valid: u64, counts: &mut [u64]) {
-    let mut minterms = [0u64; 64];
-    minterms[0] = valid;
-    let mut len = 1usize;
-    for (i, &x) in inputs.iter().enumerate() {
-        for r in 0..len {
-            let m = minterms[r];
-            minterms[r] = m & !x;
-            minterms[r | (1 << i)] = m & x;
-        }
-        len *= 2;
-        debug_assert_eq!(len, 1 << (i + 1));
-    }
-    for (c, m) in counts.iter_mut().zip(&minterms[..len]) {
-        *c += u64::from(m.count_ones());
-    }
-}
-
 /// Simulates `circuit` under `stimulus` and counts toggles and input rows.
 ///
 /// Deterministic: the same circuit, library and stimulus give the same
@@ -496,10 +457,6 @@ pub fn simulate_activity(
     let mut source = PatternSource::new(stimulus)?;
     let patterns = source.patterns();
     let gate_count = circuit.gate_count();
-    let first_gate_net = 2 + circuit.input_count as usize;
-    let mut values = vec![0u64; circuit.net_count() as usize];
-    values[NET_TRUE as usize] = u64::MAX;
-    let mut toggles = vec![0u64; gate_count];
     let per_row: Vec<bool> = (0..gate_count)
         .map(|g| {
             matches!(
@@ -508,67 +465,25 @@ pub fn simulate_activity(
             )
         })
         .collect();
-    let mut row_counts: Vec<Vec<u64>> = (0..gate_count)
-        .map(|g| {
-            if per_row[g] {
-                vec![0; 1 << circuit.gate_fanins(g).len()]
-            } else {
-                Vec::new()
-            }
-        })
-        .collect();
-    // Last pattern's value of each gate output in the previous block.
-    let mut previous_last = vec![false; gate_count];
     let truths: Vec<u64> = circuit
         .cells
         .iter()
         .map(|&c| library.cells[c as usize].truth)
         .collect();
-    if patterns == 0 {
-        return Ok(Activity {
-            patterns,
-            transitions: 0,
-            toggles,
-            row_counts,
-        });
-    }
+    // The input words are drawn in one sequence (block by block, input by
+    // input), so the patterns do not depend on how the simulation is split.
     let blocks = patterns.div_ceil(64) as usize;
-    let mut fanin_words = [0u64; 6];
+    let width = circuit.input_count as usize;
+    let mut inputs = vec![0u64; blocks * width];
     for block in 0..blocks {
-        let valid_bits = (patterns - block as u64 * 64).min(64) as u32;
-        let valid = if valid_bits == 64 {
-            u64::MAX
-        } else {
-            (1u64 << valid_bits) - 1
-        };
-        // Transitions inside the block: between bit j and j + 1 for
-        // j + 1 < valid_bits.
-        let inner = if valid_bits <= 1 { 0 } else { valid >> 1 };
-        source.fill_block(block, &mut values[2..first_gate_net]);
-        for g in 0..gate_count {
-            let fanins = circuit.gate_fanins(g);
-            for (slot, &f) in fanin_words.iter_mut().zip(fanins) {
-                *slot = values[f as usize];
-            }
-            let inputs = &fanin_words[..fanins.len()];
-            let word = eval_truth(truths[g], inputs);
-            values[first_gate_net + g] = word;
-            let mut count = ((word ^ (word >> 1)) & inner).count_ones() as u64;
-            if block > 0 && (word & 1 == 1) != previous_last[g] {
-                count += 1;
-            }
-            toggles[g] += count;
-            previous_last[g] = (word >> (valid_bits - 1)) & 1 == 1;
-            if per_row[g] {
-                count_rows(inputs, valid, &mut row_counts[g]);
-            }
-        }
+        source.fill_block(block, &mut inputs[block * width..(block + 1) * width]);
     }
+    let counts = super::activity::simulate(circuit, &truths, &per_row, &inputs, patterns);
     Ok(Activity {
         patterns,
-        transitions: patterns - 1,
-        toggles,
-        row_counts,
+        transitions: patterns.saturating_sub(1),
+        toggles: counts.toggles,
+        row_counts: counts.row_counts,
     })
 }
 
@@ -634,6 +549,133 @@ pub fn estimate(
 mod tests {
     use super::*;
 
+    // The serial simulation this module used before the kernel in
+    // `study::activity`, kept as the reference the kernel must agree with.
+    /// Evaluates a truth table on fanin words: Shannon expansion, variable 0
+    /// first, `2^k - 1` multiplexers.
+    #[inline]
+    fn eval_truth(truth: u64, inputs: &[u64]) -> u64 {
+        let k = inputs.len();
+        let mut values = [0u64; 64];
+        let rows = 1usize << k;
+        for (r, v) in values.iter_mut().enumerate().take(rows) {
+            *v = if (truth >> r) & 1 == 1 { u64::MAX } else { 0 };
+        }
+        let mut len = rows;
+        for &x in inputs {
+            len /= 2;
+            for j in 0..len {
+                values[j] = (x & values[2 * j + 1]) | (!x & values[2 * j]);
+            }
+        }
+        values[0]
+    }
+
+    /// Adds to `counts[r]` how many valid patterns put row r on the inputs.
+    fn count_rows(inputs: &[u64], valid: u64, counts: &mut [u64]) {
+        let mut minterms = [0u64; 64];
+        minterms[0] = valid;
+        let mut len = 1usize;
+        for (i, &x) in inputs.iter().enumerate() {
+            for r in 0..len {
+                let m = minterms[r];
+                minterms[r] = m & !x;
+                minterms[r | (1 << i)] = m & x;
+            }
+            len *= 2;
+            debug_assert_eq!(len, 1 << (i + 1));
+        }
+        for (c, m) in counts.iter_mut().zip(&minterms[..len]) {
+            *c += u64::from(m.count_ones());
+        }
+    }
+
+    /// Simulates `circuit` under `stimulus` one word at a time.
+    fn simulate_activity_serial(
+        circuit: &SwitchingCircuit,
+        library: &Library,
+        stimulus: &Stimulus,
+    ) -> Result<Activity, PowerError> {
+        circuit.check_against(library)?;
+        let mut source = PatternSource::new(stimulus)?;
+        let patterns = source.patterns();
+        let gate_count = circuit.gate_count();
+        let first_gate_net = 2 + circuit.input_count as usize;
+        let mut values = vec![0u64; circuit.net_count() as usize];
+        values[NET_TRUE as usize] = u64::MAX;
+        let mut toggles = vec![0u64; gate_count];
+        let per_row: Vec<bool> = (0..gate_count)
+            .map(|g| {
+                matches!(
+                    library.cells[circuit.cells[g] as usize].leakage,
+                    Leakage::PerRow(_)
+                )
+            })
+            .collect();
+        let mut row_counts: Vec<Vec<u64>> = (0..gate_count)
+            .map(|g| {
+                if per_row[g] {
+                    vec![0; 1 << circuit.gate_fanins(g).len()]
+                } else {
+                    Vec::new()
+                }
+            })
+            .collect();
+        // Last pattern's value of each gate output in the previous block.
+        let mut previous_last = vec![false; gate_count];
+        let truths: Vec<u64> = circuit
+            .cells
+            .iter()
+            .map(|&c| library.cells[c as usize].truth)
+            .collect();
+        if patterns == 0 {
+            return Ok(Activity {
+                patterns,
+                transitions: 0,
+                toggles,
+                row_counts,
+            });
+        }
+        let blocks = patterns.div_ceil(64) as usize;
+        let mut fanin_words = [0u64; 6];
+        for block in 0..blocks {
+            let valid_bits = (patterns - block as u64 * 64).min(64) as u32;
+            let valid = if valid_bits == 64 {
+                u64::MAX
+            } else {
+                (1u64 << valid_bits) - 1
+            };
+            // Transitions inside the block: between bit j and j + 1 for
+            // j + 1 < valid_bits.
+            let inner = if valid_bits <= 1 { 0 } else { valid >> 1 };
+            source.fill_block(block, &mut values[2..first_gate_net]);
+            for g in 0..gate_count {
+                let fanins = circuit.gate_fanins(g);
+                for (slot, &f) in fanin_words.iter_mut().zip(fanins) {
+                    *slot = values[f as usize];
+                }
+                let inputs = &fanin_words[..fanins.len()];
+                let word = eval_truth(truths[g], inputs);
+                values[first_gate_net + g] = word;
+                let mut count = ((word ^ (word >> 1)) & inner).count_ones() as u64;
+                if block > 0 && (word & 1 == 1) != previous_last[g] {
+                    count += 1;
+                }
+                toggles[g] += count;
+                previous_last[g] = (word >> (valid_bits - 1)) & 1 == 1;
+                if per_row[g] {
+                    count_rows(inputs, valid, &mut row_counts[g]);
+                }
+            }
+        }
+        Ok(Activity {
+            patterns,
+            transitions: patterns - 1,
+            toggles,
+            row_counts,
+        })
+    }
+
     #[test]
     fn eval_truth_matches_rows() {
         // Exhaustive: bit r of the table is the value on row r.
@@ -674,5 +716,67 @@ mod tests {
         );
         let e = InputVectors::parse("01\n011\n", "v.txt", 2).unwrap_err();
         assert_eq!((e.line, e.column), (2, 1));
+    }
+
+    /// A random circuit over the cells of `library` (every cell, random
+    /// earlier fanins), from a fixed seed.
+    fn random_circuit(library: &Library, inputs: u32, gates: usize, seed: u64) -> SwitchingCircuit {
+        let mut rng = SplitMix64::new(seed);
+        let mut c = SwitchingCircuit::new(inputs);
+        for _ in 0..gates {
+            let cell = rng.below(library.cells.len() as u64) as u32;
+            let arity = library.cells[cell as usize].arity();
+            let nets = c.net_count() as u64;
+            let fanins: Vec<u32> = (0..arity).map(|_| rng.below(nets) as u32).collect();
+            c.add_gate(cell, &fanins);
+        }
+        c
+    }
+
+    /// The parallel batched kernel gives exactly the counts of the serial
+    /// simulation it replaced, for pattern counts that end inside a word,
+    /// inside a batch and on a thread boundary, with per-row leakage.
+    #[test]
+    fn kernel_agrees_with_the_serial_simulation() {
+        let mut library = crate::library::Library::builtin("ribbon3").unwrap();
+        for (i, cell) in library.cells.iter_mut().enumerate() {
+            if i % 2 == 0 {
+                cell.leakage = Leakage::PerRow(vec![0.5; 1 << cell.arity()]);
+            }
+        }
+        for (seed, patterns) in [
+            (1, 1),
+            (2, 63),
+            (3, 64),
+            (4, 65),
+            (5, 1000),
+            (6, 16384),
+            (7, 4097),
+        ] {
+            let circuit = random_circuit(&library, 9, 300, seed);
+            for probability in [0.5, 0.3] {
+                let stimulus = Stimulus::Random {
+                    probability,
+                    patterns,
+                    seed,
+                };
+                let fast = simulate_activity(&circuit, &library, &stimulus).unwrap();
+                let serial = simulate_activity_serial(&circuit, &library, &stimulus).unwrap();
+                assert_eq!(fast, serial, "seed {seed}, {patterns} patterns");
+            }
+        }
+        let rows: Vec<Vec<bool>> = (0..200)
+            .map(|r| (0..5).map(|b| (r * 7 + b) % 3 == 0).collect())
+            .collect();
+        let stimulus = Stimulus::Vectors {
+            vectors: InputVectors::from_rows(5, &rows).unwrap(),
+            probability: 0.5,
+            seed: 3,
+        };
+        let circuit = random_circuit(&library, 9, 200, 11);
+        assert_eq!(
+            simulate_activity(&circuit, &library, &stimulus).unwrap(),
+            simulate_activity_serial(&circuit, &library, &stimulus).unwrap()
+        );
     }
 }
