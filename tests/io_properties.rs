@@ -1,10 +1,14 @@
 //! Property tests of the readers and writers: random networks survive
 //! write-then-read in BLIF and Verilog with the same function (checked by
-//! simulating both on the same random patterns), and random bytes or
-//! mutated reference files never make a reader panic.
+//! simulating both on the same random patterns), also as AIGER (ASCII and
+//! binary), and random bytes, mutated reference files or mutated AIGER
+//! files never make a reader panic.
 
 use proptest::prelude::*;
-use ribbonmap::io::{read_netlist_str, write_blif, write_verilog, NetlistFormat, ReadOptions};
+use ribbonmap::io::{
+    read_netlist_bytes, read_netlist_str, write_aiger, write_blif, write_verilog, NetlistFormat,
+    ReadOptions,
+};
 use ribbonmap::network::{InitValue, Lit, Network, SplitMix64};
 
 /// A random network described by a seed and sizes: gates draw their fanins
@@ -117,12 +121,29 @@ proptest! {
             let orig: Vec<&String> = net.inputs().keys().collect();
             prop_assert_eq!(ins, orig);
             prop_assert_eq!(back.storage().len(), net.storage().len());
-            if format == NetlistFormat::Blif {
-                for (name, s) in net.storage() {
+            for (name, s) in net.storage() {
+                // Verilog keeps only the start values 0 and 1.
+                let kept = format == NetlistFormat::Blif
+                    || matches!(s.init, InitValue::Zero | InitValue::One);
+                if kept {
                     prop_assert_eq!(back.storage()[name].init, s.init);
                 }
             }
             prop_assert_eq!(signature(&back), signature(&net), "{}", text);
+        }
+        for binary in [false, true] {
+            let bytes = write_aiger(&net, binary, None);
+            let back = read_netlist_bytes(&bytes, "rt.aig", NetlistFormat::Aig, &opts)
+                .map_err(|e| TestCaseError::fail(format!("{e}\n{}", String::from_utf8_lossy(&bytes))))?;
+            let ins: Vec<&String> = back.inputs().keys().collect();
+            let orig: Vec<&String> = net.inputs().keys().collect();
+            prop_assert_eq!(ins, orig);
+            for (name, s) in net.storage() {
+                // AIGER has 0, 1 and unknown (don't-care reads as unknown).
+                let want = if s.init == InitValue::DontCare { InitValue::Unknown } else { s.init };
+                prop_assert_eq!(back.storage()[name].init, want);
+            }
+            prop_assert_eq!(signature(&back), signature(&net));
         }
     }
 }
@@ -200,9 +221,20 @@ fn read_all(text: &str) {
         NetlistFormat::Blif,
         NetlistFormat::Verilog,
         NetlistFormat::Bench,
+        NetlistFormat::Aag,
     ] {
         let _ = read_netlist_str(text, "fuzz", f, &opts);
     }
+}
+
+/// AIGER files to mutate: a small random sequential network in both
+/// encodings.
+fn aiger_seeds() -> Vec<Vec<u8>> {
+    let net = random_network(7, 5, 40, 4, 2);
+    vec![
+        write_aiger(&net, false, Some("seed")),
+        write_aiger(&net, true, Some("seed")),
+    ]
 }
 
 proptest! {
@@ -229,6 +261,31 @@ proptest! {
         }
         let text: String = text.into_iter().collect();
         read_all(&text);
+    }
+
+    #[test]
+    fn mutated_aiger_files_never_panic(binary in any::<bool>(),
+                                       edits in proptest::collection::vec((any::<u16>(), 0u8..4, any::<u8>()), 1..6)) {
+        let mut bytes = aiger_seeds()[binary as usize].clone();
+        for (pos, op, byte) in edits {
+            let at = pos as usize % (bytes.len() + 1);
+            match op {
+                0 => bytes.insert(at, byte),
+                1 => { let end = (at + 1 + (byte as usize % 8)).min(bytes.len()); bytes.drain(at..end); }
+                2 => bytes.truncate(at),
+                _ => { if at < bytes.len() { bytes[at] = byte; } }
+            }
+        }
+        let _ = read_netlist_bytes(&bytes, "fuzz.aig", NetlistFormat::Aig, &ReadOptions::default());
+    }
+
+    #[test]
+    fn random_bytes_after_an_aiger_header_never_panic(binary in any::<bool>(), counts in proptest::collection::vec(0u32..40, 5),
+                                                      body in proptest::collection::vec(any::<u8>(), 0..200)) {
+        let mut bytes = format!("{} {} {} {} {} {}\n", if binary { "aig" } else { "aag" },
+            counts[0], counts[1], counts[2], counts[3], counts[4]).into_bytes();
+        bytes.extend(body);
+        let _ = read_netlist_bytes(&bytes, "fuzz.aig", NetlistFormat::Aig, &ReadOptions::default());
     }
 }
 

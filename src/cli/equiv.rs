@@ -9,7 +9,7 @@ use std::path::{Path, PathBuf};
 use serde_json::{json, Map, Value};
 
 use super::common::{load_library, Format};
-use super::netlist_args::NetlistArgs;
+use super::netlist_args::{library_for, NetlistArgs};
 use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK, EXIT_UNDECIDED};
 use crate::equiv::{
     check_with_stats, parse_port_map, Counterexample, EquivError, EquivOptions, EquivReport,
@@ -24,7 +24,8 @@ pub struct Args {
     /// The second netlist.
     pub netlist_b: PathBuf,
     /// Cell library for mapped netlists that instantiate its cells (built-in
-    /// name or file; default ribbon3).
+    /// name or file; default: the library a netlist's header records, else
+    /// ribbon3).
     #[arg(long, value_name = "LIB")]
     pub lib: Option<String>,
     /// How ports are paired: `name`, `order`, or a port-map file with one
@@ -63,7 +64,10 @@ pub fn run(args: Args) -> CmdResult {
         ));
     }
     let ports = port_matching(&args.ports)?;
-    let library = load_library(args.lib.as_deref().unwrap_or("ribbon3"))?;
+    let library = match library_for(args.lib.as_deref(), &[&args.netlist_a, &args.netlist_b])? {
+        Some(library) => library,
+        None => load_library("ribbon3")?,
+    };
     let a = args.netlist.read(&args.netlist_a, Some(&library))?;
     let b = args.netlist.read(&args.netlist_b, Some(&library))?;
     let opts = EquivOptions {

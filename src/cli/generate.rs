@@ -28,8 +28,9 @@ pub struct Args {
     /// Adders: add a carry input `cin`, declared last.
     #[arg(long)]
     carry_in: bool,
-    /// Output file (.blif or .v); standard output when absent.
-    #[arg(long, short = 'o', value_name = "OUT.v|OUT.blif")]
+    /// Output file (.blif, .v, or AIGER .aag / .aig); standard output when
+    /// absent.
+    #[arg(long, short = 'o', value_name = "OUT.v|OUT.blif|OUT.aig")]
     output: Option<PathBuf>,
     /// Output format; overrides the -o extension (default BLIF on standard
     /// output).
@@ -82,22 +83,33 @@ pub fn run(args: Args) -> CmdResult {
         (None, None) => NetlistFormat::Blif,
         (None, Some(path)) => NetlistFormat::from_path(path).ok_or_else(|| {
             CliError::Input(format!(
-                "{}: cannot tell the output format from the file name (expected .blif or .v, or --output-format)",
+                "{}: cannot tell the output format from the file name (expected .blif, .v, .aag or .aig, or --output-format)",
                 path.display()
             ))
         })?,
     };
-    let text =
-        write_circuit(family, &params, format).map_err(|e| CliError::Input(e.to_string()))?;
+    let text = if format.is_aiger() {
+        // AIGER keeps the description in its comment section.
+        let err = |e: crate::generate::GenerateError| CliError::Input(e.to_string());
+        let net = crate::generate::generate(family, &params).map_err(err)?;
+        let comment = format!(
+            "{}\n{}\n",
+            crate::generate::describe(family, &params).map_err(err)?,
+            crate::generate::command_line(family, &params).map_err(err)?
+        );
+        crate::io::write_aiger(&net, format == NetlistFormat::Aig, Some(&comment))
+    } else {
+        write_circuit(family, &params, format)
+            .map_err(|e| CliError::Input(e.to_string()))?
+            .into_bytes()
+    };
     match &args.output {
-        Some(path) => crate::fsutil::write_atomic(path, text.as_bytes())
+        Some(path) => crate::fsutil::write_atomic(path, &text)
             .map_err(|e| CliError::Input(format!("{}: cannot write: {e}", path.display())))?,
         None => {
             let mut stdout = std::io::stdout().lock();
             // A closed pipe (e.g. `| head`) is not an error worth reporting.
-            let _ = stdout
-                .write_all(text.as_bytes())
-                .and_then(|_| stdout.flush());
+            let _ = stdout.write_all(&text).and_then(|_| stdout.flush());
         }
     }
     Ok(EXIT_OK)

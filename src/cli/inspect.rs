@@ -2,8 +2,8 @@
 //! storage, node counts by kind, depth, largest output support, largest
 //! fanout) as text or JSON. The numbers come from [`crate::io::summarize`].
 
-use super::common::{load_library, Format};
-use super::netlist_args::NetlistArgs;
+use super::common::Format;
+use super::netlist_args::{library_for, NetlistArgs};
 use super::{CliError, CmdResult, EXIT_OK};
 use crate::io::{summarize, Summary};
 use std::path::PathBuf;
@@ -11,7 +11,7 @@ use std::path::PathBuf;
 /// Arguments of `ribbonmap inspect`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// The netlist to read: a .blif, .v or .bench file, or '-' for standard
+    /// The netlist to read: a .blif, .v, .bench, .aag or .aig file, or '-' for standard
     /// input (then give --input-format).
     #[arg(value_name = "NETLIST")]
     pub netlist: PathBuf,
@@ -20,7 +20,8 @@ pub struct Args {
     #[arg(long, value_enum, default_value = "text", value_name = "FORMAT")]
     pub format: Format,
     /// Cell library (built-in name or JSON file) whose cells the netlist
-    /// instantiates, for reading mapped netlists. Not needed otherwise.
+    /// instantiates, for reading mapped netlists. Not needed otherwise, nor
+    /// for netlists whose header records their library.
     #[arg(long, value_name = "LIB")]
     pub lib: Option<String>,
     #[command(flatten)]
@@ -38,10 +39,7 @@ pub fn run(args: Args) -> CmdResult {
             .to_lowercase(),
         ));
     }
-    let library = match &args.lib {
-        Some(spec) => Some(load_library(spec)?),
-        None => None,
-    };
+    let library = library_for(args.lib.as_deref(), &[&args.netlist])?;
     let net = args.read.read(&args.netlist, library.as_ref())?;
     let summary = summarize(&net);
     match args.format {

@@ -37,7 +37,8 @@ pub enum VerifyArg {
 /// Arguments of `ribbonmap map`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// The netlist to map (.blif, .v, .bench; `-` with --input-format).
+    /// The netlist to map (.blif, .v, .bench, .aag, .aig; `-` with
+    /// --input-format).
     pub netlist: PathBuf,
     /// Cell library: a built-in name or a library file.
     #[arg(long, value_name = "LIB", default_value = "ribbon3")]
@@ -45,9 +46,10 @@ pub struct Args {
     /// What to optimise.
     #[arg(long, value_enum, default_value = "balanced")]
     pub goal: GoalArg,
-    /// Write the mapped netlist here (.v or .blif), or a SPICE deck of it
-    /// (.cir, characterised libraries only; all inputs 0, tables beside it).
-    #[arg(short = 'o', long = "output", value_name = "OUT.v|OUT.blif|OUT.cir")]
+    /// Write the mapped netlist here (.v or .blif; .aag or .aig writes its
+    /// logic as an AIGER And-Inverter Graph), or a SPICE deck of it (.cir,
+    /// characterised libraries only; all inputs 0, tables beside it).
+    #[arg(short = 'o', long = "output", value_name = "OUT.v|OUT.blif|OUT.aig|OUT.cir")]
     pub output: Option<PathBuf>,
     /// How to check the result against the input.
     #[arg(long, value_enum, default_value = "full")]
@@ -98,13 +100,12 @@ pub fn run(args: Args) -> CmdResult {
     let out_kind = match &args.output {
         None => None,
         Some(p) => match p.extension().and_then(|e| e.to_str()) {
-            Some("v") => Some(false),
-            Some("blif") => Some(true),
+            Some(e @ ("v" | "blif" | "aag" | "aig")) => Some(e.to_string()),
             // A SPICE deck (characterised libraries only), written below.
             Some("cir") => None,
             _ => {
                 return Err(CliError::Input(format!(
-                    "{}: cannot tell the output format (expected a .v, .blif or .cir file name)",
+                    "{}: cannot tell the output format (expected a .v, .blif, .aag, .aig or .cir file name)",
                     p.display()
                 )))
             }
@@ -171,13 +172,19 @@ pub fn run(args: Args) -> CmdResult {
     seconds.insert("verify".to_string(), t.elapsed().as_secs_f64());
 
     let t = Instant::now();
-    if let (Some(path), Some(blif)) = (&args.output, out_kind) {
-        let text = if blif {
-            netlist.write_blif(&lib)
-        } else {
-            netlist.write_verilog(&lib)
+    if let (Some(path), Some(ext)) = (&args.output, out_kind) {
+        let bytes = match ext.as_str() {
+            "blif" => netlist.write_blif(&lib).into_bytes(),
+            "v" => netlist.write_verilog(&lib).into_bytes(),
+            // AIGER holds only AND gates: the mapped cells' logic, with
+            // the library named in the comment section.
+            aiger => crate::io::write_aiger(
+                &netlist.to_network(&lib),
+                aiger == "aig",
+                Some(&format!("mapped onto library {}\n", netlist.library)),
+            ),
         };
-        crate::fsutil::write_atomic(path, text.as_bytes())
+        crate::fsutil::write_atomic(path, &bytes)
             .map_err(|e| CliError::Input(format!("{}: cannot write: {e}", path.display())))?;
     }
     if let Some(path) = args.output.as_ref().filter(|_| out_kind.is_none()) {

@@ -3,7 +3,7 @@
 //! and call [`NetlistArgs::read`].
 
 use super::CliError;
-use crate::io::{read_netlist, NetlistFormat, ReadOptions, StorageCellSpec};
+use crate::io::{read_netlist, recorded_library, NetlistFormat, ReadOptions, StorageCellSpec};
 use crate::library::Library;
 use crate::network::Network;
 use std::path::Path;
@@ -11,7 +11,8 @@ use std::path::Path;
 /// Reader options shared by every command that reads netlists.
 #[derive(clap::Args, Debug, Clone, Default)]
 pub struct NetlistArgs {
-    /// Netlist format, overriding the file extension (.blif, .v, .bench).
+    /// Netlist format, overriding the file extension (.blif, .v, .bench,
+    /// .aag, .aig).
     /// Needed when the netlist is read from standard input ('-').
     #[arg(long = "input-format", value_enum, value_name = "FORMAT")]
     pub input_format: Option<NetlistFormat>,
@@ -24,6 +25,10 @@ pub struct NetlistArgs {
     /// (e.g. ff:D:Q:CK for the ISCAS-89 files). Repeat for several cells.
     #[arg(long = "storage", value_name = "CELL:D:Q:CK")]
     pub storage: Vec<StorageCellSpec>,
+    /// The most one-bit nets the flattened design may have (default
+    /// 8388608); larger files are refused before they are flattened.
+    #[arg(long = "max-nets", value_name = "N", value_parser = clap::value_parser!(u64).range(1..))]
+    pub max_nets: Option<u64>,
 }
 
 impl NetlistArgs {
@@ -41,6 +46,32 @@ impl NetlistArgs {
             top: self.top.clone(),
             storage_cells: self.storage.clone(),
             library,
+            max_nets: self.max_nets,
         }
     }
+}
+
+/// The library to read mapped netlists with: the one `--lib` names, else the
+/// first one recorded in a header of `netlists` (with a note on standard
+/// error saying so), else none.
+pub fn library_for(lib: Option<&str>, netlists: &[&Path]) -> Result<Option<Library>, CliError> {
+    if let Some(spec) = lib {
+        return super::common::load_library(spec).map(Some);
+    }
+    for path in netlists {
+        if let Some(name) = recorded_library(path) {
+            let library = super::common::load_library(&name).map_err(|e| {
+                CliError::Input(format!(
+                    "{}: the header records library '{name}', which cannot be loaded ({e}); give --lib",
+                    path.display()
+                ))
+            })?;
+            eprintln!(
+                "note: using library '{name}' recorded in the header of {} (--lib chooses another)",
+                path.display()
+            );
+            return Ok(Some(library));
+        }
+    }
+    Ok(None)
 }

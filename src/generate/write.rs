@@ -38,7 +38,7 @@ pub fn header(
 ) -> Result<String, GenerateError> {
     let marker = match format {
         NetlistFormat::Verilog => "//",
-        NetlistFormat::Blif | NetlistFormat::Bench => "#",
+        NetlistFormat::Blif | NetlistFormat::Bench | NetlistFormat::Aag | NetlistFormat::Aig => "#",
     };
     Ok(format!(
         "{marker} {}\n{marker} {}\n",
@@ -72,7 +72,9 @@ pub fn render(
     let body = match format {
         NetlistFormat::Blif => write_blif(net),
         NetlistFormat::Verilog => write_verilog(net),
-        NetlistFormat::Bench => return Err(WriteError::Format(format)),
+        NetlistFormat::Bench | NetlistFormat::Aag | NetlistFormat::Aig => {
+            return Err(WriteError::Format(format))
+        }
     };
     let mut text = header(family, params, format)?;
     text.push_str(&body);

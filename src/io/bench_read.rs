@@ -136,5 +136,6 @@ pub fn read(text: &str, file: &str, name: &str) -> Result<Network, SourceError> 
         let n = flat.net(&name);
         flat.add_output(&name, Sig::net(n), loc);
     }
+    flat.require_outputs(super::flat::end_loc(text), "at least one OUTPUT(...) line")?;
     flat.build()
 }

@@ -15,6 +15,7 @@
 //! (`<model>$<k>/`) so that their internal nets stay apart.
 
 use super::flat::{Flat, GateOp, Loc, Sig, StorageDecl};
+use super::limits::{self, ModuleSize, Part};
 use super::{CellLookup, ReadOptions};
 use crate::diag::SourceError;
 use crate::network::{InitValue, Network};
@@ -148,8 +149,27 @@ struct Model {
     loc: Loc,
     /// Byte offset and line number of the first line after `.model`.
     body: (usize, u32),
-    inputs: Vec<String>,
-    outputs: Vec<String>,
+    /// Ports with the position of each name on its `.inputs`/`.outputs` line.
+    inputs: Vec<(String, Loc)>,
+    outputs: Vec<(String, Loc)>,
+    /// Logical lines of the body (the size estimate's own part).
+    lines: u64,
+    /// `.subckt` lines: model name and position.
+    subckts: Vec<(String, Loc)>,
+}
+
+impl Model {
+    fn new(name: String, loc: Loc, body: (usize, u32)) -> Model {
+        Model {
+            name,
+            loc,
+            body,
+            inputs: Vec::new(),
+            outputs: Vec::new(),
+            lines: 0,
+            subckts: Vec::new(),
+        }
+    }
 }
 
 /// Reads BLIF `text` (named `file` in errors).
@@ -159,8 +179,8 @@ pub fn read(text: &str, file: &str, opts: &ReadOptions) -> Result<Network, Sourc
         Some(name) => models.iter().position(|m| &m.name == name).ok_or_else(|| {
             SourceError::new(
                 file,
-                0,
-                0,
+                models[0].loc.0,
+                models[0].loc.1,
                 format!(
                     "no model named '{name}' (expected one of: {})",
                     models
@@ -173,21 +193,48 @@ pub fn read(text: &str, file: &str, opts: &ReadOptions) -> Result<Network, Sourc
         })?,
         None => 0,
     };
+    let by_name: FxHashMap<&str, usize> = models
+        .iter()
+        .enumerate()
+        .map(|(i, m)| (m.name.as_str(), i))
+        .collect();
+    let mut flat = Flat::new(file);
+    flat.set_max_nets(opts.max_nets());
+    let sizes: Vec<ModuleSize> = models
+        .iter()
+        .map(|m| {
+            let mut parts = vec![Part {
+                own: m.lines + m.inputs.len() as u64 + m.outputs.len() as u64,
+                loc: m.loc,
+                child: None,
+            }];
+            parts.extend(m.subckts.iter().map(|(name, loc)| Part {
+                own: 1,
+                loc: *loc,
+                child: by_name.get(name.as_str()).copied(),
+            }));
+            ModuleSize {
+                name: &m.name,
+                parts,
+            }
+        })
+        .collect();
+    limits::check_hierarchy(&flat, &sizes, top, opts.max_nets(), "model")?;
     let mut reader = Reader {
         text,
         models: &models,
-        by_name: models
-            .iter()
-            .enumerate()
-            .map(|(i, m)| (m.name.as_str(), i))
-            .collect(),
-        flat: Flat::new(file),
+        by_name,
+        flat,
         cells: CellLookup::new(opts),
         active: Vec::new(),
         instances: 0,
     };
     reader.flat.set_name(&models[top].name);
     reader.elaborate(top, "", None)?;
+    reader.flat.require_outputs(
+        models[top].loc,
+        "an '.outputs' line naming at least one output",
+    )?;
     reader.flat.build()
 }
 
@@ -226,13 +273,7 @@ fn index_models(text: &str, file: &str) -> Result<Vec<Model>, SourceError> {
                         .map_or(text.len() - line.offset, |i| i + 1);
                 // Continuation lines inside '.model' are not supported for the
                 // body start; the body starts after the physical line.
-                models.push(Model {
-                    name,
-                    loc: (line.line, col),
-                    body: (after, line.line + 1),
-                    inputs: Vec::new(),
-                    outputs: Vec::new(),
-                });
+                models.push(Model::new(name, (line.line, col), (after, line.line + 1)));
                 open = true;
             }
             ".end" => open = false,
@@ -240,13 +281,7 @@ fn index_models(text: &str, file: &str) -> Result<Vec<Model>, SourceError> {
                 if !open {
                     if models.is_empty() {
                         // A file without '.model': one unnamed model.
-                        models.push(Model {
-                            name: "top".to_string(),
-                            loc: (line.line, col),
-                            body: (0, 1),
-                            inputs: Vec::new(),
-                            outputs: Vec::new(),
-                        });
+                        models.push(Model::new("top".to_string(), (line.line, col), (0, 1)));
                         open = true;
                     } else {
                         return Err(SourceError::new(
@@ -263,27 +298,34 @@ fn index_models(text: &str, file: &str) -> Result<Vec<Model>, SourceError> {
                 } else {
                     &mut m.outputs
                 };
-                list.extend(toks[1..].iter().map(|(t, _)| t.to_string()));
+                list.extend(
+                    toks[1..]
+                        .iter()
+                        .map(|&(t, c)| (t.to_string(), (line.line, c))),
+                );
             }
             _ => {
                 if !open && models.is_empty() {
-                    models.push(Model {
-                        name: "top".to_string(),
-                        loc: (line.line, col),
-                        body: (0, 1),
-                        inputs: Vec::new(),
-                        outputs: Vec::new(),
-                    });
+                    models.push(Model::new("top".to_string(), (line.line, col), (0, 1)));
                     open = true;
+                }
+                if let Some(m) = models.last_mut().filter(|_| open) {
+                    m.lines += 1;
+                    if cmd == ".subckt" {
+                        if let Some(&(name, c)) = toks.get(1) {
+                            m.subckts.push((name.to_string(), (line.line, c)));
+                        }
+                    }
                 }
             }
         }
     }
     if models.is_empty() {
+        let (line, col) = super::flat::end_loc(text);
         return Err(SourceError::new(
             file,
-            0,
-            0,
+            line,
+            col,
             "no model found (expected '.model NAME' with '.inputs', '.outputs' and logic)",
         ));
     }
@@ -349,9 +391,9 @@ impl<'a, 'o> Reader<'a, 'o> {
         self.active.push(index);
         let model = &self.models[index];
         if bindings.is_none() {
-            for name in &model.inputs {
+            for (name, loc) in &model.inputs {
                 let net = self.flat.net(name);
-                self.flat.add_input(net, model.loc)?;
+                self.flat.add_input(net, *loc)?;
             }
         }
         let mut cover: Option<Cover> = None;
@@ -379,6 +421,7 @@ impl<'a, 'o> Reader<'a, 'o> {
             if let Some(c) = cover.take() {
                 self.finish_cover(c)?;
             }
+            self.flat.check_size((line.line, col))?;
             match first {
                 ".model" | ".end" => break,
                 ".inputs" | ".outputs" => {}
@@ -403,9 +446,9 @@ impl<'a, 'o> Reader<'a, 'o> {
         }
         if bindings.is_none() {
             let model = &self.models[index];
-            for name in &model.outputs {
+            for (name, loc) in &model.outputs {
                 let net = self.flat.net(name);
-                self.flat.add_output(name, Sig::net(net), model.loc);
+                self.flat.add_output(name, Sig::net(net), *loc);
             }
         }
         self.active.pop();
@@ -655,11 +698,11 @@ impl<'a, 'o> Reader<'a, 'o> {
         let pins = self.pin_pairs(&toks[2..], line)?;
         self.instances += 1;
         let child = format!("{prefix}{model_name}${}/", self.instances);
-        let model = &self.models[index];
-        let (inputs, outputs) = (model.inputs.clone(), model.outputs.clone());
+        let models: &'a [Model] = self.models;
+        let model = &models[index];
         for &(formal, actual, col) in &pins {
-            let is_in = inputs.iter().any(|i| i == formal);
-            let is_out = outputs.iter().any(|o| o == formal);
+            let is_in = model.inputs.iter().any(|i| i.0 == formal);
+            let is_out = model.outputs.iter().any(|o| o.0 == formal);
             let parent = self.net(prefix, actual);
             let inner = self.net(&child, formal);
             if is_in {

@@ -139,6 +139,17 @@ pub(crate) struct Flat {
     inputs: Vec<(u32, Loc)>,
     outputs: Vec<(String, Sig, Loc)>,
     storage: Vec<StorageDecl>,
+    /// The most nets the design may have ([`super::limits`]).
+    max_nets: u64,
+}
+
+/// The position just past the end of `text` (for errors about what a file
+/// lacks, such as a module or an output).
+pub(crate) fn end_loc(text: &str) -> Loc {
+    let body = text.trim_end();
+    let line = body.matches('\n').count() as u32 + 1;
+    let col = body.len() - body.rfind('\n').map_or(0, |p| p + 1);
+    (line, col as u32 + 1)
 }
 
 impl Flat {
@@ -158,7 +169,72 @@ impl Flat {
             inputs: Vec::new(),
             outputs: Vec::new(),
             storage: Vec::new(),
+            max_nets: super::limits::DEFAULT_MAX_NETS,
         }
+    }
+
+    /// Sets the most one-bit nets the design may have.
+    pub fn set_max_nets(&mut self, max_nets: u64) {
+        self.max_nets = max_nets;
+    }
+
+    /// The most one-bit nets the design may have.
+    pub fn max_nets(&self) -> u64 {
+        self.max_nets
+    }
+
+    /// Refuses the design at `loc` once it holds more nets or gate input
+    /// connections than the limit allows; readers call it after each
+    /// statement, so a file can never allocate much past the limit.
+    pub fn check_size(&self, loc: Loc) -> Result<(), SourceError> {
+        let nets = self.drivers.len() as u64;
+        let connections = self.fanins.len() as u64 + self.cube_pool.len() as u64 / 8;
+        let max_connections = self
+            .max_nets
+            .saturating_mul(super::limits::CONNECTIONS_PER_NET);
+        if nets > self.max_nets || connections > max_connections {
+            return Err(self.error(
+                loc,
+                format!(
+                    "the design grows past {} one-bit nets or {max_connections} gate connections here (expected a smaller design; --max-nets N raises the limit)",
+                    self.max_nets
+                ),
+            ));
+        }
+        Ok(())
+    }
+
+    /// Refuses a design without outputs at `loc` (the end of the file).
+    pub fn require_outputs(&self, loc: Loc, expected: &str) -> Result<(), SourceError> {
+        if self.outputs.is_empty() {
+            return Err(self.error(
+                loc,
+                format!(
+                    "the design '{}' has no outputs (expected {expected})",
+                    self.name
+                ),
+            ));
+        }
+        Ok(())
+    }
+
+    /// Gives storage elements initial values: each `(q, value)` sets the
+    /// element whose output net is `q`. Returns the index of the first pair
+    /// whose net no storage element drives.
+    pub fn set_storage_inits(&mut self, inits: &[(u32, InitValue)]) -> Result<(), usize> {
+        let by_q: rustc_hash::FxHashMap<u32, usize> = self
+            .storage
+            .iter()
+            .enumerate()
+            .map(|(i, s)| (s.q, i))
+            .collect();
+        for (k, &(q, init)) in inits.iter().enumerate() {
+            match by_q.get(&q) {
+                Some(&i) => self.storage[i].init = init,
+                None => return Err(k),
+            }
+        }
+        Ok(())
     }
 
     /// Sets the design name.

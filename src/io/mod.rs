@@ -1,4 +1,4 @@
-//! Netlist readers and writers: BLIF, structural Verilog and BENCH.
+//! Netlist readers and writers: BLIF, structural Verilog, BENCH and AIGER.
 //!
 //! Every reader turns text into a [`Network`] in two steps: it records nets
 //! and their drivers in a flat netlist (`flat`), flattening hierarchy on the
@@ -28,10 +28,14 @@
 //! assert_eq!(again.gate_count(), 1);
 //! ```
 
+mod aiger_read;
+mod aiger_write;
 mod bench_read;
 mod blif_read;
 mod blif_write;
 mod flat;
+mod header;
+mod limits;
 mod names;
 mod summary;
 mod verilog_lex;
@@ -39,8 +43,11 @@ mod verilog_parse;
 mod verilog_read;
 mod verilog_write;
 
+pub use aiger_write::write_aiger;
 pub use blif_read::IGNORED_COMMANDS as BLIF_IGNORED_COMMANDS;
 pub use blif_write::write_blif;
+pub use header::{recorded_library, recorded_library_in};
+pub use limits::{DEFAULT_MAX_NETS, MAX_EXPRESSION_WIDTH};
 pub use summary::{output_supports, summarize, FanoutEntry, Summary, SupportEntry};
 pub use verilog_write::{identifier as verilog_identifier, write_verilog};
 
@@ -59,17 +66,23 @@ pub enum NetlistFormat {
     Verilog,
     /// ISCAS BENCH (`.bench`).
     Bench,
+    /// AIGER, ASCII encoding (`.aag`). The reader accepts either encoding.
+    Aag,
+    /// AIGER, binary encoding (`.aig`). The reader accepts either encoding.
+    Aig,
 }
 
 impl NetlistFormat {
-    /// The format a file name's extension implies (`.blif`, `.v`, `.bench`;
-    /// case-insensitive), if any.
+    /// The format a file name's extension implies (`.blif`, `.v`, `.bench`,
+    /// `.aag`, `.aig`; case-insensitive), if any.
     pub fn from_path(path: &Path) -> Option<NetlistFormat> {
         let ext = path.extension()?.to_str()?.to_ascii_lowercase();
         match ext.as_str() {
             "blif" => Some(NetlistFormat::Blif),
             "v" | "vg" | "sv" => Some(NetlistFormat::Verilog),
             "bench" => Some(NetlistFormat::Bench),
+            "aag" => Some(NetlistFormat::Aag),
+            "aig" => Some(NetlistFormat::Aig),
             _ => None,
         }
     }
@@ -80,7 +93,14 @@ impl NetlistFormat {
             NetlistFormat::Blif => "blif",
             NetlistFormat::Verilog => "v",
             NetlistFormat::Bench => "bench",
+            NetlistFormat::Aag => "aag",
+            NetlistFormat::Aig => "aig",
         }
+    }
+
+    /// True for the AIGER encodings, which are read as bytes.
+    pub fn is_aiger(self) -> bool {
+        matches!(self, NetlistFormat::Aag | NetlistFormat::Aig)
     }
 }
 
@@ -133,6 +153,18 @@ pub struct ReadOptions<'a> {
     pub storage_cells: Vec<StorageCellSpec>,
     /// Library whose cells instances may refer to (mapped netlists).
     pub library: Option<&'a Library>,
+    /// The most one-bit nets the flattened design may have (named nets and
+    /// intermediate expression values; gate input connections may number
+    /// four times as many). `None` means [`DEFAULT_MAX_NETS`]. Files that
+    /// would flatten past it are refused before they are flattened.
+    pub max_nets: Option<u64>,
+}
+
+impl ReadOptions<'_> {
+    /// The bound on one-bit nets in force.
+    pub fn max_nets(&self) -> u64 {
+        self.max_nets.unwrap_or(DEFAULT_MAX_NETS)
+    }
 }
 
 /// Reads the netlist at `path` (`-` reads standard input, whose format must
@@ -148,7 +180,7 @@ pub fn read_netlist(path: &Path, opts: &ReadOptions) -> Result<Network, SourceEr
                 file_name,
                 0,
                 0,
-                "cannot tell the netlist format from the file name (expected a .blif, .v or .bench extension, or --input-format)",
+                "cannot tell the netlist format from the file name (expected a .blif, .v, .bench, .aag or .aig extension, or --input-format)",
             ))
         }
     };
@@ -166,8 +198,31 @@ pub fn read_netlist(path: &Path, opts: &ReadOptions) -> Result<Network, SourceEr
             format!("cannot read: {e}"),
         ));
     }
-    let text = decode(&bytes, &file_name)?;
-    read_netlist_str(text, &file_name, format, opts)
+    read_netlist_bytes(&bytes, &file_name, format, opts)
+}
+
+/// Reads a netlist from the bytes of a file: text formats must be UTF-8,
+/// AIGER may be binary. `file_name` is used in error messages (and, for
+/// BENCH and AIGER, as the design name).
+pub fn read_netlist_bytes(
+    bytes: &[u8],
+    file_name: &str,
+    format: NetlistFormat,
+    opts: &ReadOptions,
+) -> Result<Network, SourceError> {
+    if format.is_aiger() {
+        return aiger_read::read(bytes, file_name, design_name(file_name), opts);
+    }
+    let text = decode(bytes, file_name)?;
+    read_netlist_str(text, file_name, format, opts)
+}
+
+/// The design name of formats without one: the file name's stem.
+fn design_name(file_name: &str) -> &str {
+    Path::new(file_name)
+        .file_stem()
+        .and_then(|s| s.to_str())
+        .unwrap_or("top")
 }
 
 /// Checks that `bytes` are UTF-8 text; the error points at the first bad byte.
@@ -204,6 +259,9 @@ pub fn read_netlist_str(
     format: NetlistFormat,
     opts: &ReadOptions,
 ) -> Result<Network, SourceError> {
+    if format.is_aiger() {
+        return aiger_read::read(text.as_bytes(), file_name, design_name(file_name), opts);
+    }
     if let Some(pos) = text.find('\0') {
         let line = text[..pos].matches('\n').count() as u32 + 1;
         let col = (pos - text[..pos].rfind('\n').map_or(0, |p| p + 1)) as u32 + 1;
@@ -217,12 +275,9 @@ pub fn read_netlist_str(
     match format {
         NetlistFormat::Blif => blif_read::read(text, file_name, opts),
         NetlistFormat::Verilog => verilog_read::read(text, file_name, opts),
-        NetlistFormat::Bench => {
-            let stem = Path::new(file_name)
-                .file_stem()
-                .and_then(|s| s.to_str())
-                .unwrap_or("top");
-            bench_read::read(text, file_name, stem)
+        NetlistFormat::Bench => bench_read::read(text, file_name, design_name(file_name)),
+        NetlistFormat::Aag | NetlistFormat::Aig => {
+            aiger_read::read(text.as_bytes(), file_name, design_name(file_name), opts)
         }
     }
 }

@@ -4,8 +4,9 @@
 //! ANSI-style ports, `input`/`output`/`wire`/`reg` declarations with and
 //! without ranges, `assign` with expressions, gate primitives, module and
 //! cell instances with named or positional connections, and clocked
-//! `always` blocks of non-blocking assignments (flip-flops). Delays (`#...`)
-//! are skipped. Anything behavioural beyond that is an error naming the
+//! `always` blocks of non-blocking assignments (flip-flops), and `initial`
+//! assignments of constants to registers (their start values). Delays
+//! (`#...`) are skipped. Anything behavioural beyond that is an error naming the
 //! line. Elaboration (turning modules into nets) lives in `verilog_read`.
 
 use super::flat::Loc;
@@ -141,6 +142,8 @@ pub(crate) enum Item<'a> {
         clock: Expr<'a>,
         assigns: Vec<(Expr<'a>, Expr<'a>, Loc)>,
     },
+    /// `initial` assignments of constants: start values of registers.
+    Initial(Vec<(Expr<'a>, Expr<'a>, Loc)>),
 }
 
 /// A parsed module.
@@ -154,7 +157,6 @@ pub(crate) struct Module<'a> {
 }
 
 const BEHAVIOURAL: &[&str] = &[
-    "initial",
     "parameter",
     "localparam",
     "function",
@@ -206,10 +208,11 @@ pub(crate) fn parse<'a>(src: &'a str, file: &'a str) -> Result<Vec<Module<'a>>, 
         }
     }
     if modules.is_empty() {
+        let (line, col) = super::flat::end_loc(src);
         return Err(SourceError::new(
             file,
-            0,
-            0,
+            line,
+            col,
             "no module found (expected 'module NAME (...); ... endmodule')",
         ));
     }
@@ -282,9 +285,15 @@ impl<'a> Parser<'a> {
         self.expect(":")?;
         let lsb = self.integer()?;
         self.expect("]")?;
-        if (msb - lsb).abs() > 1 << 20 {
+        if msb.abs_diff(lsb) >= super::limits::MAX_EXPRESSION_WIDTH {
             let t = self.lx.peek()?;
-            return Err(self.lx.error(t.loc, "range wider than 2^20 bits"));
+            return Err(self.lx.error(
+                t.loc,
+                format!(
+                    "range [{msb}:{lsb}] is wider than {} bits",
+                    super::limits::MAX_EXPRESSION_WIDTH
+                ),
+            ));
         }
         Ok(Some((msb, lsb)))
     }
@@ -432,6 +441,7 @@ impl<'a> Parser<'a> {
                 Kind::Ident if t.text == "always" || t.text == "always_ff" => {
                     self.always(&mut m, t)?
                 }
+                Kind::Ident if t.text == "initial" => self.initial(&mut m)?,
                 Kind::Ident if prim(t.text).is_some() => {
                     let p = prim(t.text).expect("checked");
                     self.skip_delay()?;
@@ -613,6 +623,44 @@ impl<'a> Parser<'a> {
             clock,
             assigns,
         });
+        Ok(())
+    }
+
+    /// `initial` with constant assignments to registers (`initial q = 1'b0;`,
+    /// `initial q <= 1'b0;` or a begin/end block of them; delays skipped).
+    fn initial(&mut self, m: &mut Module<'a>) -> Result<(), SourceError> {
+        const ONLY: &str = "an 'initial' block may only give registers constant start values (expected 'initial q = 1'b0;', 'initial q <= 1'b0;' or a begin/end block of such assignments)";
+        let block = self.accept("begin")?;
+        if block && self.accept(":")? {
+            self.name("a block name")?;
+        }
+        let mut assigns = Vec::new();
+        loop {
+            if block && self.accept("end")? {
+                break;
+            }
+            self.skip_delay()?;
+            let t = self.lx.peek()?;
+            if !t.is_name() || (t.kind == Kind::Ident && is_reserved(t.text)) {
+                return Err(self.lx.error(t.loc, ONLY));
+            }
+            let lhs = self.expr()?;
+            let op = self.lx.next_token()?;
+            if !op.is("=") && !op.is("<=") {
+                return Err(self.lx.error(op.loc, ONLY));
+            }
+            self.skip_delay()?;
+            let rhs = self.expr()?;
+            if !matches!(rhs, Expr::Const(..)) {
+                return Err(self.lx.error(rhs.loc(), ONLY));
+            }
+            self.expect(";")?;
+            assigns.push((lhs, rhs, op.loc));
+            if !block {
+                break;
+            }
+        }
+        m.items.push(Item::Initial(assigns));
         Ok(())
     }
 

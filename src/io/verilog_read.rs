@@ -7,6 +7,11 @@
 //! (named with `--storage` or declared by the library) and clocked `always`
 //! blocks become storage elements.
 //!
+//! `initial` assignments of constants give the registers they name their
+//! start values. Sizes are bounded ([`super::limits`]): every expression's
+//! width, and the flattened size of the hierarchy, estimated before
+//! elaboration so that a file describing a huge design is refused at once.
+//!
 //! Bit naming: bit `i` of a vector `a` is the net `a[i]`, the same name an
 //! escaped identifier `\a[i] ` gives, so bit-blasted and vector files agree.
 //! Ports of the top module become inputs and outputs in header order, and
@@ -16,6 +21,7 @@
 //! the inputs in the cell's order, as gate primitives do.
 
 use super::flat::{Flat, GateOp, Loc, Sig, StorageDecl};
+use super::limits::{self, ModuleSize, Part, MAX_EXPRESSION_WIDTH};
 use super::verilog_parse::{parse, BinOp, Conns, Decl, Dir, Expr, Item, Module, Prim, UnOp};
 use super::{CellLookup, ReadOptions};
 use crate::diag::SourceError;
@@ -40,8 +46,8 @@ pub fn read(text: &str, file: &str, opts: &ReadOptions) -> Result<Network, Sourc
         Some(name) => *by_name.get(name.as_str()).ok_or_else(|| {
             SourceError::new(
                 file,
-                0,
-                0,
+                modules[0].loc.0,
+                modules[0].loc.1,
                 format!(
                     "no module named '{name}' (expected one of: {})",
                     modules
@@ -69,16 +75,17 @@ pub fn read(text: &str, file: &str, opts: &ReadOptions) -> Result<Network, Sourc
                 [] => {
                     return Err(SourceError::new(
                         file,
-                        0,
-                        0,
+                        modules[0].loc.0,
+                        modules[0].loc.1,
                         "every module is instantiated by another (expected one top module)",
                     ))
                 }
                 many => {
+                    let second = modules[many[1]].loc;
                     return Err(SourceError::new(
                         file,
-                        0,
-                        0,
+                        second.0,
+                        second.1,
                         format!(
                             "several top modules: {} (choose one with --top)",
                             many.iter()
@@ -86,22 +93,92 @@ pub fn read(text: &str, file: &str, opts: &ReadOptions) -> Result<Network, Sourc
                                 .collect::<Vec<_>>()
                                 .join(", ")
                         ),
-                    ))
+                    ));
                 }
             }
         }
     };
+    let mut flat = Flat::new(file);
+    flat.set_max_nets(opts.max_nets());
+    check_sizes(&flat, &modules, &by_name, top)?;
     let mut e = Elaborator {
         modules: &modules,
         by_name,
-        flat: Flat::new(file),
+        flat,
         cells: CellLookup::new(opts),
         active: Vec::new(),
         unnamed: 0,
+        inits: Vec::new(),
+        init_locs: Vec::new(),
     };
     e.flat.set_name(modules[top].name);
     e.elaborate(top, "", None)?;
+    if let Err(k) = e.flat.set_storage_inits(&e.inits) {
+        let net = e.flat.net_name(e.inits[k].0);
+        return Err(e.flat.error(
+            e.init_locs[k],
+            format!("'{net}' gets an initial value but is not a register (expected a register of a clocked always block or the output of a storage cell)"),
+        ));
+    }
+    e.flat.require_outputs(
+        modules[top].loc,
+        "at least one output port in the top module",
+    )?;
     e.flat.build()
+}
+
+/// Refuses, before elaboration, a hierarchy whose flattened declarations
+/// and statements would exceed the net limit ([`limits::check_hierarchy`]).
+fn check_sizes(
+    flat: &Flat,
+    modules: &[Module],
+    by_name: &FxHashMap<&str, usize>,
+    top: usize,
+) -> Result<(), SourceError> {
+    let sizes: Vec<ModuleSize> = modules
+        .iter()
+        .map(|m| {
+            let mut decls: Vec<&Decl> = m.decls.values().collect();
+            decls.sort_by_key(|d| d.loc);
+            let mut parts: Vec<Part> = decls
+                .iter()
+                .map(|d| Part {
+                    own: d.range.map_or(1, |(a, b)| a.abs_diff(b) + 1),
+                    loc: d.loc,
+                    child: None,
+                })
+                .collect();
+            parts.extend(m.items.iter().map(|it| match it {
+                Item::Instance {
+                    module, module_loc, ..
+                } => Part {
+                    own: 1,
+                    loc: *module_loc,
+                    child: by_name.get(module).copied(),
+                },
+                other => Part {
+                    own: 1,
+                    loc: item_loc(other),
+                    child: None,
+                },
+            }));
+            ModuleSize {
+                name: m.name,
+                parts,
+            }
+        })
+        .collect();
+    limits::check_hierarchy(flat, &sizes, top, flat.max_nets(), "module")
+}
+
+/// Where an item starts.
+fn item_loc(item: &Item) -> Loc {
+    match item {
+        Item::Assign(_, _, loc) | Item::Prim(_, _, loc) => *loc,
+        Item::Instance { module_loc, .. } => *module_loc,
+        Item::Always { clock, .. } => clock.loc(),
+        Item::Initial(assigns) => assigns.first().map_or((0, 0), |a| a.2),
+    }
 }
 
 struct Elaborator<'a, 'm, 'o> {
@@ -111,6 +188,10 @@ struct Elaborator<'a, 'm, 'o> {
     cells: CellLookup<'o>,
     active: Vec<usize>,
     unnamed: u32,
+    /// Start values from `initial` blocks: register net and value, and
+    /// where each was given.
+    inits: Vec<(u32, InitValue)>,
+    init_locs: Vec<Loc>,
 }
 
 /// The module being elaborated and its net-name prefix.
@@ -185,6 +266,18 @@ impl<'a, 'm, 'o> Elaborator<'a, 'm, 'o> {
         }
     }
 
+    /// Refuses an expression wider than [`MAX_EXPRESSION_WIDTH`] bits before
+    /// its bits are made.
+    fn check_width(&self, width: u64, loc: Loc) -> Result<(), SourceError> {
+        if width > MAX_EXPRESSION_WIDTH {
+            return Err(self.err(
+                loc,
+                format!("expression would be {width} bits wide, more than the limit of {MAX_EXPRESSION_WIDTH} bits (expected a narrower replication or concatenation)"),
+            ));
+        }
+        Ok(())
+    }
+
     fn reduce(&mut self, op: GateOp, bits: &[Sig], loc: Loc) -> Sig {
         if bits.len() == 1 {
             return bits[0];
@@ -237,15 +330,18 @@ impl<'a, 'm, 'o> Elaborator<'a, 'm, 'o> {
                     .collect()
             }
             Expr::Const(bits, _) => bits.iter().map(|&b| Sig::constant(b)).collect(),
-            Expr::Concat(parts, _) => {
+            Expr::Concat(parts, loc) => {
                 let mut bits = Vec::new();
                 for p in parts.iter().rev() {
-                    bits.extend(self.eval(scope, p)?);
+                    let part = self.eval(scope, p)?;
+                    self.check_width(bits.len() as u64 + part.len() as u64, *loc)?;
+                    bits.extend(part);
                 }
                 bits
             }
-            Expr::Repeat(n, inner, _) => {
+            Expr::Repeat(n, inner, loc) => {
                 let one = self.eval(scope, inner)?;
+                self.check_width(one.len() as u64 * *n as u64, *loc)?;
                 let mut bits = Vec::with_capacity(one.len() * *n as usize);
                 for _ in 0..*n {
                     bits.extend_from_slice(&one);
@@ -415,6 +511,7 @@ impl<'a, 'm, 'o> Elaborator<'a, 'm, 'o> {
         }
         for item in &module.items {
             self.item(&scope, item)?;
+            self.flat.check_size(item_loc(item))?;
         }
         if at.is_none() {
             for (port, _) in &module.ports {
@@ -490,6 +587,21 @@ impl<'a, 'm, 'o> Elaborator<'a, 'm, 'o> {
                 name,
                 conns,
             } => self.instance(scope, module, *module_loc, name, conns),
+            Item::Initial(assigns) => {
+                for (lhs, rhs, loc) in assigns {
+                    let q = self.lvalue(scope, lhs)?;
+                    let Expr::Const(bits, _) = rhs else {
+                        return Err(self.err(rhs.loc(), "initial value must be a constant"));
+                    };
+                    for (k, &net) in q.iter().enumerate() {
+                        let one = bits.get(k).copied().unwrap_or(false);
+                        let value = if one { InitValue::One } else { InitValue::Zero };
+                        self.inits.push((net, value));
+                        self.init_locs.push(*loc);
+                    }
+                }
+                Ok(())
+            }
         }
     }
 

@@ -7,7 +7,8 @@
 //! storage element as a `reg` updated by `always @(posedge CLOCK)` (or
 //! `negedge` for falling-edge latches), which the reader recognises as a
 //! flip-flop. A storage element without a clock input gets a clock port named
-//! `<prefix>clock`. Initial values are not written. Only logic some output or
+//! `<prefix>clock`. Initial values 0 and 1 are written as `initial q = 1'b0;`
+//! (don't-care and unknown values are left out). Only logic some output or
 //! storage element depends on is written; the output is deterministic.
 
 use super::names::Namer;
@@ -169,6 +170,14 @@ pub fn write_verilog(net: &Network) -> String {
             identifier(name),
             term(s.next)
         );
+    }
+    for (name, s) in net.storage() {
+        let value = match s.init {
+            crate::network::InitValue::Zero => "1'b0",
+            crate::network::InitValue::One => "1'b1",
+            _ => continue,
+        };
+        let _ = writeln!(out, "  initial {} = {value};", identifier(name));
     }
     for (name, &lit) in net.outputs() {
         if namer.is_plain(lit) && namer.node(lit.node()) == *name {

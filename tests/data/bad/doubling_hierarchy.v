@@ -1,0 +1,24 @@
+module m_0(a, y); input a; output y; assign y = ~a; endmodule
+module m_1(a, y); input a; output y; wire t; m_0 u1(a, t); m_0 u2(t, y); endmodule
+module m_2(a, y); input a; output y; wire t; m_1 u1(a, t); m_1 u2(t, y); endmodule
+module m_3(a, y); input a; output y; wire t; m_2 u1(a, t); m_2 u2(t, y); endmodule
+module m_4(a, y); input a; output y; wire t; m_3 u1(a, t); m_3 u2(t, y); endmodule
+module m_5(a, y); input a; output y; wire t; m_4 u1(a, t); m_4 u2(t, y); endmodule
+module m_6(a, y); input a; output y; wire t; m_5 u1(a, t); m_5 u2(t, y); endmodule
+module m_7(a, y); input a; output y; wire t; m_6 u1(a, t); m_6 u2(t, y); endmodule
+module m_8(a, y); input a; output y; wire t; m_7 u1(a, t); m_7 u2(t, y); endmodule
+module m_9(a, y); input a; output y; wire t; m_8 u1(a, t); m_8 u2(t, y); endmodule
+module m_10(a, y); input a; output y; wire t; m_9 u1(a, t); m_9 u2(t, y); endmodule
+module m_11(a, y); input a; output y; wire t; m_10 u1(a, t); m_10 u2(t, y); endmodule
+module m_12(a, y); input a; output y; wire t; m_11 u1(a, t); m_11 u2(t, y); endmodule
+module m_13(a, y); input a; output y; wire t; m_12 u1(a, t); m_12 u2(t, y); endmodule
+module m_14(a, y); input a; output y; wire t; m_13 u1(a, t); m_13 u2(t, y); endmodule
+module m_15(a, y); input a; output y; wire t; m_14 u1(a, t); m_14 u2(t, y); endmodule
+module m_16(a, y); input a; output y; wire t; m_15 u1(a, t); m_15 u2(t, y); endmodule
+module m_17(a, y); input a; output y; wire t; m_16 u1(a, t); m_16 u2(t, y); endmodule
+module m_18(a, y); input a; output y; wire t; m_17 u1(a, t); m_17 u2(t, y); endmodule
+module m_19(a, y); input a; output y; wire t; m_18 u1(a, t); m_18 u2(t, y); endmodule
+module m_20(a, y); input a; output y; wire t; m_19 u1(a, t); m_19 u2(t, y); endmodule
+module m_21(a, y); input a; output y; wire t; m_20 u1(a, t); m_20 u2(t, y); endmodule
+module m_22(a, y); input a; output y; wire t; m_21 u1(a, t); m_21 u2(t, y); endmodule
+module m_23(a, y); input a; output y; wire t; m_22 u1(a, t); m_22 u2(t, y); endmodule

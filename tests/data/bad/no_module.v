@@ -1,0 +1,2 @@
+// a file with a comment and no module
+
