@@ -172,7 +172,7 @@ pub fn run(args: Args) -> CmdResult {
     seconds.insert("verify".to_string(), t.elapsed().as_secs_f64());
 
     let t = Instant::now();
-    if let (Some(path), Some(ext)) = (&args.output, out_kind) {
+    if let (Some(path), Some(ext)) = (&args.output, &out_kind) {
         let bytes = match ext.as_str() {
             "blif" => netlist.write_blif(&lib).into_bytes(),
             "v" => netlist.write_verilog(&lib).into_bytes(),
