@@ -110,19 +110,40 @@ pub fn library_json(ch: &Characterization, library_dir: &Path) -> Value {
                 .iter()
                 .map(|r| round6(r.power_w(vdd) * 1e9))
                 .collect();
-            json!({
+            // The kit's declared function when it has one (characterisation
+            // checked that the tables compute it), else the derived table.
+            let (key, function) = match &c.kit_cell.declared {
+                Some((text, _)) => ("function", text.clone()),
+                None => ("truth", format!("0x{:0digits$X}", c.truth)),
+            };
+            let mut cell = json!({
                 "name": c.kit_cell.name,
                 "inputs": c.kit_cell.inputs,
                 "output": c.kit_cell.output,
-                "truth": format!("0x{:0digits$X}", c.truth),
                 "area": c.kit_cell.area,
                 "delay": {"intrinsic": round6(c.intrinsic_ps), "per_load": round6(c.per_load_ps)},
                 "input_load": round6(c.input_load),
                 "switch_energy": round6(c.switch_energy_aj),
                 "leakage": leakage,
                 "devices": c.kit_cell.devices,
-                "electrical": electrical_block(c, library_dir),
-            })
+            });
+            if let Value::Object(map) = &mut cell {
+                // Keep the usual field order: the function right after the pins.
+                let mut ordered = serde_json::Map::new();
+                for (k, v) in std::mem::take(map) {
+                    let after_output = k == "output";
+                    ordered.insert(k, v);
+                    if after_output {
+                        ordered.insert(key.into(), Value::from(function.clone()));
+                    }
+                }
+                *map = ordered;
+                map.insert(
+                    "electrical".into(),
+                    serde_json::to_value(electrical_block(c, library_dir)).unwrap_or(Value::Null),
+                );
+            }
+            cell
         })
         .collect();
     let derived_from = DerivedFrom {
