@@ -1,5 +1,5 @@
 //! `ribbonmap equiv` from the outside: exit codes, JSON fields and errors
-//! (DESIGN.md contract). Netlists: the ISCAS-85 c17 pair
+//! (docs/json-output.md, docs/exit-codes.md). Netlists: the ISCAS-85 c17 pair
 //! (tests/data/reference/netlists/iscas85, circuitgraph 0.2.1 via
 //! PROVENANCE.md) and small variants of it written here.
 

@@ -1,6 +1,6 @@
 //! `ribbonmap generate` driven as a binary: output to standard output and to
 //! files, the format following the extension, and exit code 2 with a
-//! one-line error for bad families, styles and widths (DESIGN.md exit codes).
+//! one-line error for bad families, styles and widths (docs/exit-codes.md).
 
 use assert_cmd::Command;
 use predicates::prelude::*;

@@ -1,6 +1,6 @@
 //! Broken library files in tests/data/bad-libraries are rejected, each with
 //! the offending cell and field named, both through the API and through
-//! `ribbonmap library check` (exit code 1, DESIGN.md contract).
+//! `ribbonmap library check` (exit code 1, docs/exit-codes.md).
 
 use assert_cmd::Command;
 use ribbonmap::library::Library;

@@ -1,6 +1,6 @@
 //! The built-in libraries load, and their cells compute what their names say.
 //!
-//! Expected truth tables are written independently here from the DESIGN.md
+//! Expected truth tables are written independently here from the docs/library-format.md
 //! convention (bit r = value on row r, input k = bit k of r), by evaluating
 //! the textbook definition of each gate on every row (exhaustive simulation).
 
@@ -60,7 +60,7 @@ fn every_builtin_loads_and_its_cells_compute_their_names() {
 
 #[test]
 fn convention_anchors() {
-    // DESIGN.md: maj3 = 0xE8, xor3 = 0x96.
+    // docs/library-format.md: maj3 = 0xE8, xor3 = 0x96.
     let lib = Library::builtin("ribbon3").unwrap();
     assert_eq!(lib.cell("maj3").unwrap().truth, 0xE8);
     assert_eq!(lib.cell("xor3").unwrap().truth, 0x96);

@@ -1,4 +1,4 @@
-//! `ribbonmap map` from the command line: JSON contract fields (DESIGN.md),
+//! `ribbonmap map` from the command line: JSON contract fields (docs/json-output.md),
 //! written netlists, and exit code 2 on bad input.
 
 use assert_cmd::Command;

@@ -139,7 +139,7 @@ fn majority_of_three_is_one_cell() {
         let mapped = map_checked(&net, &lib, goal);
         assert_eq!(mapped.instances.len(), 1);
         assert_eq!(lib.cells[mapped.instances[0].cell as usize].name, "maj3");
-        // maj3 = 0xE8 (DESIGN.md truth-table convention), checked exhaustively.
+        // maj3 = 0xE8 (truth-table convention, docs/library-format.md), checked exhaustively.
         assert_eq!(
             mapped.to_network(&lib).output_truth_tables().unwrap(),
             vec![0xE8]

@@ -30,7 +30,7 @@ fn eval(e: &E, row: u64) -> bool {
 }
 
 /// Binding strength of the top operator: NOT 4 > AND 3 > XOR 2 > OR 1
-/// (the precedence DESIGN.md's language documents); atoms 5.
+/// (the precedence docs/library-format.md documents); atoms 5.
 fn level(e: &E) -> u8 {
     match e {
         E::Or(..) => 1,

@@ -56,7 +56,7 @@ proptest! {
 
 #[test]
 fn hex_and_binary_text() {
-    // DESIGN.md: maj3 = 0xE8 (rows 7..0 = 1110 1000).
+    // docs/library-format.md: maj3 = 0xE8 (rows 7..0 = 1110 1000).
     let maj = TruthTable::from_fn(3, |r| (r & 7).count_ones() >= 2);
     assert_eq!(maj.to_hex(), "0xE8");
     assert_eq!(maj.to_binary(), "11101000");
