@@ -36,6 +36,8 @@ use std::time::{Duration, Instant};
 struct CountingAllocator;
 
 static LIVE: AtomicUsize = AtomicUsize::new(0);
+/// True while a fuzz input runs (panics then are findings, not harness bugs).
+static IN_INPUT: AtomicBool = AtomicBool::new(false);
 static PEAK: AtomicUsize = AtomicUsize::new(0);
 
 unsafe impl GlobalAlloc for CountingAllocator {
@@ -385,7 +387,10 @@ fn mutate(input: &mut Vec<u8>, rng: &mut Random, dictionary: &[&str], seeds: &[V
             let i = rng.below(len + 1);
             let byte = match rng.below(3) {
                 0 => rng.next() as u8,
-                1 => b"(){}[];,.=\"\\\n \t#"[rng.below(17)],
+                1 => {
+                    const PUNCTUATION: &[u8] = b"(){}[];,.=\"\\\n \t#";
+                    PUNCTUATION[rng.below(PUNCTUATION.len())]
+                }
                 _ => b'a' + rng.below(26) as u8,
             };
             input.insert(i, byte);
@@ -565,7 +570,9 @@ fn main() {
     {
         let last_panic = Arc::clone(&last_panic);
         std::panic::set_hook(Box::new(move |info| {
-            if let Ok(mut m) = last_panic.lock() {
+            if !IN_INPUT.load(Ordering::Relaxed) {
+                eprintln!("fuzz harness: {info}");
+            } else if let Ok(mut m) = last_panic.lock() {
                 *m = info.to_string();
             }
         }));
@@ -605,6 +612,9 @@ fn main() {
         let mut tally = Tally::default();
         let current = settings.findings.join(format!("current.{}", reader.name()));
         let mut previous: Option<Vec<u8>> = None;
+        // One open file, rewritten in place for each input (cheaper than
+        // creating a file per input).
+        let mut current_file = std::fs::File::create(&current).expect("findings file");
         for n in 0..settings.inputs {
             // Mostly a fresh mutant of a seed; sometimes a further mutant
             // of the last input (a short random walk).
@@ -615,15 +625,22 @@ fn main() {
             for _ in 0..1 + rng.below(4) {
                 mutate(&mut input, &mut rng, reader.dictionary(), &corpus);
             }
-            let _ = std::fs::write(&current, &input);
+            {
+                use std::io::{Seek, Write};
+                let _ = current_file.set_len(0);
+                let _ = current_file.rewind();
+                let _ = current_file.write_all(&input);
+            }
             let base = LIVE.load(Ordering::Relaxed);
             PEAK.store(base, Ordering::Relaxed);
             started_ms.store(epoch.elapsed().as_millis() as u64, Ordering::Relaxed);
             running.store(true, Ordering::Relaxed);
             let t = Instant::now();
+            IN_INPUT.store(true, Ordering::Relaxed);
             let outcome = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
                 run_reader(reader, &input, plan_dir.path(), &library)
             }));
+            IN_INPUT.store(false, Ordering::Relaxed);
             let seconds = t.elapsed().as_secs_f64();
             running.store(false, Ordering::Relaxed);
             let peak = PEAK.load(Ordering::Relaxed).saturating_sub(base);
@@ -659,7 +676,18 @@ fn main() {
                 );
             }
             previous = Some(input);
+            if (n + 1) % 10_000 == 0 {
+                eprintln!(
+                    "fuzz: {} {} inputs, {} panics, {} over the time limit, {} over the memory limit",
+                    reader.name(),
+                    n + 1,
+                    tally.panics,
+                    tally.slow,
+                    tally.heavy
+                );
+            }
         }
+        drop(current_file);
         let _ = std::fs::remove_file(&current);
         total_failures += tally.panics + tally.slow + tally.heavy;
         println!(
