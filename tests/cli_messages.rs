@@ -287,3 +287,35 @@ fn study_plans_are_checked_whole_and_absolute_paths_kept() {
         stderr(&out)
     );
 }
+
+#[test]
+fn old_option_names_still_work_for_one_release_with_a_note() {
+    // --optimize is the old name of --restructure (hidden alias).
+    let out = ribbonmap(&[
+        "map",
+        C17,
+        "--verify",
+        "none",
+        "--optimize",
+        "--format",
+        "json",
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    assert!(
+        stderr(&out).contains("now called --restructure"),
+        "{}",
+        stderr(&out)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert!(v["seconds"]["restructure"].as_f64().is_some(), "{v}");
+    let help = ribbonmap(&["map", "--help"]);
+    let help = String::from_utf8_lossy(&help.stdout);
+    assert!(
+        help.contains("--restructure") && help.contains("--exact-cuts"),
+        "{help}"
+    );
+    assert!(
+        !help.contains("--optimize") && !help.contains("--optimum"),
+        "{help}"
+    );
+}
