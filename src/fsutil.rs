@@ -2,17 +2,63 @@
 //!
 //! Every file ribbonmap writes goes to a temporary file in the same folder
 //! first and is renamed over the target, so an interrupted run never leaves a
-//! half-written netlist or result file behind.
+//! half-written netlist or result file behind. Errors never name the
+//! temporary file (the user never asked for it): they carry only what went
+//! wrong, and callers add the file the user named.
 
 use std::io::Write;
 use std::path::Path;
 
-/// Writes `contents` to `path` atomically (temporary file, then rename).
-pub fn write_atomic(path: &Path, contents: &[u8]) -> std::io::Result<()> {
-    let dir = match path.parent() {
+/// The folder a file at `path` is written in.
+fn folder_of(path: &Path) -> &Path {
+    match path.parent() {
         Some(p) if !p.as_os_str().is_empty() => p,
         _ => Path::new("."),
+    }
+}
+
+/// The error without any file name in it (tempfile adds the temporary
+/// file's path to its errors).
+fn plain(e: std::io::Error) -> std::io::Error {
+    let message = match e.raw_os_error() {
+        Some(code) => std::io::Error::from_raw_os_error(code).to_string(),
+        None => e.kind().to_string(),
     };
+    std::io::Error::new(e.kind(), message)
+}
+
+/// Checks, before long work, that [`write_atomic`] can write `path`: its
+/// folder exists and takes a new file, and `path` is not a folder. The
+/// message names the folder or the file, never a temporary file.
+pub fn check_writable(path: &Path) -> Result<(), String> {
+    let dir = folder_of(path);
+    if path.is_dir() {
+        return Err(format!("{}: is a folder, not a file name", path.display()));
+    }
+    if !dir.is_dir() {
+        return Err(format!(
+            "{}: cannot write: the folder {} does not exist",
+            path.display(),
+            dir.display()
+        ));
+    }
+    tempfile::NamedTempFile::new_in(dir).map(drop).map_err(|e| {
+        format!(
+            "{}: cannot write in the folder {}: {}",
+            path.display(),
+            dir.display(),
+            plain(e)
+        )
+    })
+}
+
+/// Writes `contents` to `path` atomically (temporary file, then rename).
+pub fn write_atomic(path: &Path, contents: &[u8]) -> std::io::Result<()> {
+    write_atomic_inner(path, contents).map_err(plain)
+}
+
+fn write_atomic_inner(path: &Path, contents: &[u8]) -> std::io::Result<()> {
+    let dir = folder_of(path);
     let mut tmp = tempfile::NamedTempFile::new_in(dir)?;
     tmp.write_all(contents)?;
     tmp.flush()?;

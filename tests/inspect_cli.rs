@@ -134,7 +134,12 @@ fn text_report_and_unsupported_format() {
         "csv",
     ]);
     assert_eq!(out.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&out.stderr).contains("expected text or json"));
+    // The refusal lists exactly the formats inspect prints.
+    assert!(
+        String::from_utf8_lossy(&out.stderr).contains("[possible values: text, json]"),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
 }
 
 #[test]

@@ -314,7 +314,7 @@ fn old_command_names_still_work_for_one_release_with_a_note() {
     let results = dir.path().join("r.jsonl");
     let out = Command::cargo_bin("ribbonmap")
         .unwrap()
-        .arg("sweep")
+        .args(["sweep"])
         .arg(&plan)
         .arg("-o")
         .arg(&results)
@@ -326,7 +326,7 @@ fn old_command_names_still_work_for_one_release_with_a_note() {
     assert_eq!(lines_by_key(&results).0, 1);
     let out = Command::cargo_bin("ribbonmap")
         .unwrap()
-        .arg("merge")
+        .args(["merge"])
         .arg(&results)
         .output()
         .unwrap();

@@ -9,7 +9,7 @@ use crate::library::Library;
 pub enum Format {
     /// Aligned text for a terminal.
     Text,
-    /// JSON (fields as DESIGN.md fixes).
+    /// JSON (fields in docs/json-output.md).
     Json,
     /// Comma-separated values.
     Csv,
@@ -17,6 +17,29 @@ pub enum Format {
     Markdown,
     /// A LaTeX booktabs table.
     Latex,
+}
+
+/// Output format of a command that prints one report (not a table): the
+/// only values such a command accepts are the ones it prints.
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum ReportFormat {
+    /// Aligned text for a terminal.
+    Text,
+    /// JSON (fields in docs/json-output.md).
+    Json,
+}
+
+/// `n` and the noun, singular for one and plural otherwise ("1 job",
+/// "2 jobs", "3 classes").
+pub fn counted(n: impl Into<u64>, noun: &str) -> String {
+    let n = n.into();
+    if n == 1 {
+        format!("1 {noun}")
+    } else if noun.ends_with('s') || noun.ends_with('x') {
+        format!("{n} {noun}es")
+    } else {
+        format!("{n} {noun}s")
+    }
 }
 
 /// Loads a library given as a built-in name or a file path.

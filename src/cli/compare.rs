@@ -4,7 +4,7 @@
 use super::common::{load_library, Format};
 use super::netlist_args::NetlistArgs;
 use super::{CliError, CmdResult, EXIT_OK};
-use crate::study::evaluate::{compare, EvaluateOptions};
+use crate::study::evaluate::{compare_reporting, EvaluateOptions};
 use crate::study::power::Stimulus;
 use crate::study::table::{render, ComparisonTable, Metric, TableFormat};
 use crate::study::{render_svg, Goal, StudyError, StudyRecord, VerifyMode};
@@ -75,6 +75,23 @@ pub(super) fn cli_error(e: StudyError) -> CliError {
     }
 }
 
+/// Checks a `--chart` file name before any work: it must end in `.svg` (the
+/// only chart format written) and its folder must take a new file.
+pub(super) fn check_chart(chart: Option<&Path>) -> Result<(), CliError> {
+    let Some(path) = chart else { return Ok(()) };
+    let is_svg = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| e.eq_ignore_ascii_case("svg"));
+    if !is_svg {
+        return Err(CliError::Input(format!(
+            "--chart {}: charts are written as SVG; give a file name ending in .svg",
+            path.display()
+        )));
+    }
+    crate::fsutil::check_writable(path).map_err(CliError::Input)
+}
+
 /// Prints the table of `records` and writes the chart if asked.
 pub(super) fn print_table(
     records: &[StudyRecord],
@@ -94,6 +111,7 @@ pub(super) fn print_table(
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
+    check_chart(args.chart.as_deref())?;
     let specs = if args.libs.is_empty() {
         vec!["ribbon3".to_string()]
     } else {
@@ -144,9 +162,23 @@ pub fn run(args: Args) -> CmdResult {
     let pool = pool
         .build()
         .map_err(|e| CliError::Internal(format!("cannot start worker threads: {e}")))?;
+    let progress = super::progress::bar(
+        (benchmarks.len() * libraries.len()) as u64,
+        "compare: mappings",
+    );
     let records = pool
-        .install(|| compare(&benchmarks, &libraries, &options))
-        .map_err(cli_error)?;
+        .install(|| {
+            compare_reporting(&benchmarks, &libraries, &options, || {
+                if let Some(p) = &progress {
+                    p.inc(1);
+                }
+            })
+        })
+        .map_err(cli_error);
+    if let Some(p) = progress {
+        p.finish_and_clear();
+    }
+    let records = records?;
     print_table(
         &records,
         None,

@@ -48,7 +48,15 @@ pub fn run(args: Args) -> CmdResult {
     let mut tables = Vec::with_capacity(specs.len());
     for spec in &specs {
         let library = load_library(spec)?;
-        let table = coverage_of_library(&library, &opts).map_err(|e| match e {
+        let progress = super::progress::spinner(&format!(
+            "coverage: {}-input functions on {}",
+            opts.inputs, library.name
+        ));
+        let table = coverage_of_library(&library, &opts);
+        if let Some(p) = progress {
+            p.finish_and_clear();
+        }
+        let table = table.map_err(|e| match e {
             ExactError::Internal(m) => CliError::Internal(m),
             other => CliError::Input(other.to_string()),
         })?;
@@ -124,7 +132,7 @@ fn table_rows(tables: &[Coverage]) -> Vec<(String, Vec<String>)> {
     let mut rows = Vec::new();
     for c in counts {
         rows.push((
-            format!("{c} cells"),
+            super::common::counted(c as u64, "cell"),
             tables
                 .iter()
                 .map(|t| t.histogram.get(&c).copied().unwrap_or(0).to_string())
@@ -197,9 +205,9 @@ fn render_text(tables: &[Coverage]) -> String {
                 "from cache".to_string()
             } else {
                 format!(
-                    "computed in {:.2} s ({} classes)",
+                    "computed in {:.2} s ({})",
                     t.seconds,
-                    t.classes.len()
+                    super::common::counted(t.classes.len() as u64, "class")
                 )
             }
         ));

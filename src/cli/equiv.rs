@@ -1,14 +1,14 @@
 //! `ribbonmap equiv`: prove two netlists equivalent or show an input that
 //! tells them apart.
 //!
-//! Exit codes (DESIGN.md contract): 0 equivalent, 1 different (with a
+//! Exit codes (docs/exit-codes.md): 0 equivalent, 1 different (with a
 //! counterexample), 3 undecided, 2 bad input.
 
 use std::path::{Path, PathBuf};
 
 use serde_json::{json, Map, Value};
 
-use super::common::{load_library, Format};
+use super::common::{load_library, ReportFormat};
 use super::netlist_args::{library_for, NetlistArgs};
 use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK, EXIT_UNDECIDED};
 use crate::equiv::{
@@ -38,7 +38,7 @@ pub struct Args {
     pub conflict_limit: u64,
     /// Report format.
     #[arg(long, value_enum, default_value = "text")]
-    pub format: Format,
+    pub format: ReportFormat,
     /// Reader options shared by the commands that read netlists.
     #[command(flatten)]
     pub netlist: NetlistArgs,
@@ -58,11 +58,6 @@ fn port_matching(spec: &str) -> Result<PortMatching, CliError> {
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
-    if !matches!(args.format, Format::Text | Format::Json) {
-        return Err(CliError::Input(
-            "equiv writes only --format text or json".into(),
-        ));
-    }
     let ports = port_matching(&args.ports)?;
     let library = match library_for(args.lib.as_deref(), &[&args.netlist_a, &args.netlist_b])? {
         Some(library) => library,
@@ -84,7 +79,7 @@ pub fn run(args: Args) -> CmdResult {
         )),
     })?;
     match args.format {
-        Format::Json => outln!(
+        ReportFormat::Json => outln!(
             "{}",
             serde_json::to_string_pretty(&to_json(&report)).expect("JSON values serialise")
         ),
@@ -117,7 +112,7 @@ fn counterexample_json(cex: &Counterexample) -> Value {
 }
 
 /// The JSON report (fields `verdict`, `outputs_checked`, `counterexample`
-/// are the DESIGN.md contract; `undecided_outputs` and `stats` are extras).
+/// are documented in docs/json-output.md; `undecided_outputs` and `stats` are extras).
 pub fn to_json(report: &EquivReport) -> Value {
     let mut obj = Map::new();
     obj.insert("verdict".into(), json!(report.verdict.name()));
@@ -149,15 +144,22 @@ pub fn to_text(report: &EquivReport, a: &Path, b: &Path) -> String {
     match &report.verdict {
         Verdict::Equivalent { .. } => {
             s += &format!(
-                "equivalent: all {checked} outputs of {} and {} are proven equal\n",
+                "equivalent: {} of {} and {} {} proven equal\n",
+                if checked == 1 {
+                    "the 1 output".to_string()
+                } else {
+                    format!("all {checked} outputs")
+                },
                 a.display(),
-                b.display()
+                b.display(),
+                if checked == 1 { "is" } else { "are" }
             );
         }
         Verdict::Undecided { outputs, .. } => {
             s += &format!(
-                "undecided: the work limit stopped the proof of {} of {checked} outputs (no difference found)\n",
-                outputs.len()
+                "undecided: the work limit stopped the proof of {} of {} (no difference found)\n",
+                outputs.len(),
+                super::common::counted(checked as u64, "output")
             );
             for o in outputs {
                 s += &format!("  {o}\n");
@@ -166,8 +168,14 @@ pub fn to_text(report: &EquivReport, a: &Path, b: &Path) -> String {
         Verdict::Different { counterexample, .. } => {
             let cex = counterexample;
             s += &format!(
-                "different: {} of {checked} outputs differ on this input assignment\n\n",
-                cex.differing_outputs.len()
+                "different: {} of {} {} on this input assignment\n\n",
+                cex.differing_outputs.len(),
+                super::common::counted(checked as u64, "output"),
+                if cex.differing_outputs.len() == 1 {
+                    "differs"
+                } else {
+                    "differ"
+                }
             );
             let width = cex
                 .inputs

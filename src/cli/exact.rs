@@ -1,7 +1,7 @@
 //! `ribbonmap exact`: a provably smallest network of library cells for a
 //! small function, printed as a small netlist with its costs.
 
-use super::common::{load_library, Format};
+use super::common::{load_library, ReportFormat};
 use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK, EXIT_UNDECIDED};
 use crate::exact::{gates_from_library, synthesize, ExactError, ExactOptions, Objective};
 use std::time::{Duration, Instant};
@@ -47,16 +47,23 @@ pub struct Args {
     pub max_steps: usize,
     /// Output format: text or json.
     #[arg(long, value_enum, default_value = "text")]
-    pub format: Format,
+    pub format: ReportFormat,
+}
+
+/// A signal of the found network as JSON (docs/json-output.md):
+/// `{"from": "input"|"step"|"constant", "index": k, "complemented": b}`.
+fn operand_json(op: &crate::exact::Operand) -> serde_json::Value {
+    use crate::exact::Source;
+    let (from, index) = match op.source {
+        Source::Constant => ("constant", 0),
+        Source::Input(k) => ("input", k),
+        Source::Step(i) => ("step", i),
+    };
+    serde_json::json!({ "from": from, "index": index, "complemented": op.complemented })
 }
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
-    if !matches!(args.format, Format::Text | Format::Json) {
-        return Err(CliError::Input(
-            "exact prints text or json only".to_string(),
-        ));
-    }
     if args.inputs > 5 {
         return Err(CliError::Input(format!(
             "--inputs {}: exact synthesis supports at most 5 inputs",
@@ -96,13 +103,16 @@ pub fn run(args: Args) -> CmdResult {
         Ok(r) => r,
         Err(ExactError::NotFound(n)) => {
             eprintln!(
-                "error: no network of at most {n} cells of '{}' realises the function",
+                "error: no network of at most {} of '{}' realises the function",
+                super::common::counted(n as u64, "cell"),
                 library.name
             );
             return Ok(EXIT_NEGATIVE);
         }
         Err(ExactError::LimitReached) => {
-            eprintln!("error: a resource limit stopped the search before any network was found");
+            eprintln!(
+                "undecided: a resource limit stopped the search before any network was found"
+            );
             return Ok(EXIT_UNDECIDED);
         }
         Err(ExactError::Internal(m)) => return Err(CliError::Internal(m)),
@@ -112,7 +122,7 @@ pub fn run(args: Args) -> CmdResult {
     let tables: Vec<String> = functions.iter().map(|f| format!("0x{f:X}")).collect();
     let objective_name = format!("{objective:?}").to_lowercase();
     match args.format {
-        Format::Json => {
+        ReportFormat::Json => {
             let value = serde_json::json!({
                 "function": tables,
                 "inputs": args.inputs,
@@ -124,8 +134,11 @@ pub fn run(args: Args) -> CmdResult {
                 "depth": result.depth,
                 "optimal": result.optimal,
                 "netlist": result.netlist(),
-                "steps": result.steps,
-                "outputs": result.outputs,
+                "steps": result.steps.iter().map(|s| serde_json::json!({
+                    "cell": s.cell,
+                    "fanins": s.fanins.iter().map(operand_json).collect::<Vec<_>>(),
+                })).collect::<Vec<_>>(),
+                "outputs": result.outputs.iter().map(operand_json).collect::<Vec<_>>(),
                 "sat_calls": result.sat_calls,
                 "seconds": seconds,
             });
@@ -137,9 +150,9 @@ pub fn run(args: Args) -> CmdResult {
         }
         _ => {
             outln!(
-                "function   {} over {} inputs",
+                "function   {} over {}",
                 tables.join(","),
-                args.inputs
+                super::common::counted(args.inputs as u64, "input")
             );
             outln!("library    {}", library.name);
             outln!("objective  {objective_name}");
@@ -154,7 +167,10 @@ pub fn run(args: Args) -> CmdResult {
             );
             outln!("area       {} {}", result.area, library.units.area);
             outln!("depth      {}", result.depth);
-            outln!("time       {seconds:.3} s, {} SAT calls", result.sat_calls);
+            outln!(
+                "time       {seconds:.3} s, {}",
+                super::common::counted(result.sat_calls as u64, "SAT call")
+            );
             outln!("netlist");
             for line in result.netlist() {
                 outln!("  {line}");

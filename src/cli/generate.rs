@@ -35,10 +35,29 @@ pub struct Args {
     /// Output format; overrides the -o extension (default BLIF on standard
     /// output).
     #[arg(long, value_enum, value_name = "FORMAT")]
-    output_format: Option<NetlistFormat>,
+    output_format: Option<WriterFormat>,
     /// List the families with their styles and widths, and exit.
     #[arg(long)]
     list: bool,
+}
+
+/// The netlist formats generated circuits are written in (only those with a
+/// writer, so `--help` lists exactly what works).
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum WriterFormat {
+    /// Berkeley Logic Interchange Format.
+    Blif,
+    /// Structural Verilog.
+    Verilog,
+}
+
+impl From<WriterFormat> for NetlistFormat {
+    fn from(f: WriterFormat) -> NetlistFormat {
+        match f {
+            WriterFormat::Blif => NetlistFormat::Blif,
+            WriterFormat::Verilog => NetlistFormat::Verilog,
+        }
+    }
 }
 
 /// The family table printed by `--list`.
@@ -79,7 +98,7 @@ pub fn run(args: Args) -> CmdResult {
     };
     check_params(family, &params).map_err(|e| CliError::Input(e.to_string()))?;
     let format = match (args.output_format, &args.output) {
-        (Some(f), _) => f,
+        (Some(f), _) => f.into(),
         (None, None) => NetlistFormat::Blif,
         (None, Some(path)) => NetlistFormat::from_path(path).ok_or_else(|| {
             CliError::Input(format!(

@@ -2,7 +2,7 @@
 //! storage, node counts by kind, depth, largest output support, largest
 //! fanout) as text or JSON. The numbers come from [`crate::io::summarize`].
 
-use super::common::Format;
+use super::common::ReportFormat;
 use super::netlist_args::{library_for, NetlistArgs};
 use super::{CliError, CmdResult, EXIT_OK};
 use crate::io::{summarize, Summary};
@@ -18,7 +18,7 @@ pub struct Args {
     /// Report format: 'text' (aligned lines) or 'json' (fields inputs,
     /// outputs, storage, nodes {and, xor, maj}, depth and more).
     #[arg(long, value_enum, default_value = "text", value_name = "FORMAT")]
-    pub format: Format,
+    pub format: ReportFormat,
     /// Cell library (built-in name or JSON file) whose cells the netlist
     /// instantiates, for reading mapped netlists. Not needed otherwise, nor
     /// for netlists whose header records their library.
@@ -30,20 +30,11 @@ pub struct Args {
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
-    if !matches!(args.format, Format::Text | Format::Json) {
-        return Err(CliError::Input(
-            format!(
-                "inspect cannot print --format {:?} (expected text or json)",
-                args.format
-            )
-            .to_lowercase(),
-        ));
-    }
     let library = library_for(args.lib.as_deref(), &[&args.netlist])?;
     let net = args.read.read(&args.netlist, library.as_ref())?;
     let summary = summarize(&net);
     match args.format {
-        Format::Json => {
+        ReportFormat::Json => {
             let text = serde_json::to_string_pretty(&summary)
                 .map_err(|e| CliError::Internal(format!("cannot encode the summary: {e}")))?;
             outln!("{text}");
@@ -70,10 +61,15 @@ pub fn text_report(s: &Summary, file: &str) -> String {
         format!("depth                   {}", s.depth),
     ];
     if let Some(e) = &s.largest_output_support {
-        lines.push(format!(
-            "largest output support  {} inputs ({})",
-            e.inputs, e.output
-        ));
+        let inputs = if e.inputs == 1 { "input" } else { "inputs" };
+        lines.push(if s.storage > 0 {
+            format!(
+                "largest output support  {} {inputs} ({}; storage next states count as outputs, storage outputs as inputs)",
+                e.inputs, e.output
+            )
+        } else {
+            format!("largest output support  {} {inputs} ({})", e.inputs, e.output)
+        });
     }
     if let Some(e) = &s.largest_fanout {
         lines.push(format!("largest fanout          {} ({})", e.fanout, e.node));

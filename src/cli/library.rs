@@ -303,10 +303,10 @@ fn check(file: &str, format: LibraryFormat) -> CmdResult {
         (Ok(lib), LibraryFormat::Text) => {
             let _ = writeln!(
                 out,
-                "{file}: library '{}' is sound: {} cells, {} storage cells",
+                "{file}: library '{}' is sound: {}, {}",
                 lib.name,
-                lib.cells.len(),
-                lib.storage.len()
+                super::common::counted(lib.cells.len() as u64, "cell"),
+                super::common::counted(lib.storage.len() as u64, "storage cell")
             );
             emit(&out);
             Ok(EXIT_OK)

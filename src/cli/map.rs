@@ -4,7 +4,7 @@
 //! A mapped netlist that fails its own verification is a bug: the command
 //! says so and exits 70.
 
-use super::common::{load_library, Format};
+use super::common::{load_library, ReportFormat};
 use super::{CliError, CmdResult, EXIT_OK};
 use crate::cli::netlist_args::NetlistArgs;
 use crate::mapper::{map_detailed, Goal, MapOptions};
@@ -82,7 +82,7 @@ pub struct Args {
     pub old_optimize: bool,
     /// Report format.
     #[arg(long, value_enum, default_value = "text")]
-    pub format: Format,
+    pub format: ReportFormat,
     /// How to read the netlist.
     #[command(flatten)]
     pub reading: NetlistArgs,
@@ -111,6 +111,9 @@ pub fn run(args: Args) -> CmdResult {
             }
         },
     };
+    if let Some(path) = &args.output {
+        crate::fsutil::check_writable(path).map_err(CliError::Input)?;
+    }
     let t = Instant::now();
     let net = args.reading.read(&args.netlist, Some(&lib))?;
     let read_seconds = t.elapsed().as_secs_f64();
@@ -127,7 +130,17 @@ pub fn run(args: Args) -> CmdResult {
         optimize: args.restructure || args.old_optimize,
         ..MapOptions::default()
     };
-    let outcome = map_detailed(&net, &lib, &opts).map_err(|e| match e {
+    // Exact cuts and restructuring can take minutes on a new library.
+    let progress = if opts.optimum || opts.optimize {
+        super::progress::spinner(&format!("map: {} on {}", args.netlist.display(), lib.name))
+    } else {
+        None
+    };
+    let outcome = map_detailed(&net, &lib, &opts);
+    if let Some(p) = progress {
+        p.finish_and_clear();
+    }
+    let outcome = outcome.map_err(|e| match e {
         crate::mapper::MapError::InvalidOptions(m) => CliError::Input(m),
         crate::mapper::MapError::Unmappable(m) => CliError::Input(m),
     })?;
@@ -208,7 +221,7 @@ pub fn run(args: Args) -> CmdResult {
     seconds.insert("energy".to_string(), t.elapsed().as_secs_f64());
     let report = Report::new(&netlist, &lib, goal.name(), &timing, verified, seconds);
     match args.format {
-        Format::Json => {
+        ReportFormat::Json => {
             let mut value = serde_json::to_value(&report)
                 .map_err(|e| CliError::Internal(format!("cannot encode the report: {e}")))?;
             if let serde_json::Value::Object(m) = &mut value {

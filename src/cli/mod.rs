@@ -2,7 +2,7 @@
 //!
 //! Each command file defines its clap `Args` and a `run` function that calls
 //! the library, prints, and returns an exit code. Errors of every layer are
-//! turned into a [`CliError`] here, which fixes the exit code (DESIGN.md:
+//! turned into a [`CliError`] here, which fixes the exit code (docs/exit-codes.md:
 //! 2 bad usage or input, 70 internal error) and prints one `error:` line.
 //! Commands print through [`out!`]/[`outln!`], which end the process quietly
 //! when the reader of standard output has gone (`ribbonmap map x | head`).
@@ -37,6 +37,7 @@ mod inspect;
 mod library;
 mod map;
 pub mod netlist_args;
+mod progress;
 mod spice;
 mod study;
 mod tabulate;
@@ -88,7 +89,13 @@ pub type CmdResult = Result<u8, CliError>;
 /// Technology mapping and evaluation for libraries of multi-input
 /// conductance gates.
 #[derive(Parser, Debug)]
-#[command(name = "ribbonmap", version, about, long_about = None)]
+#[command(
+    name = "ribbonmap",
+    version,
+    about,
+    long_about = None,
+    after_help = "Formats, JSON fields and exit codes: the docs/ folder of the source (docs/README.md)."
+)]
 pub struct Cli {
     #[command(subcommand)]
     command: Command,
@@ -109,8 +116,10 @@ enum Command {
     /// Map netlists on several libraries and compare the results side by side.
     Compare(compare::Args),
     /// Run every job of a study plan and append the results to a file.
+    #[command(after_help = "Plans and result lines: docs/study.md.")]
     Study(study::Args),
     /// Combine study result files and print comparison tables.
+    #[command(after_help = "Result lines: docs/study.md; JSON tables: docs/json-output.md.")]
     Tabulate(tabulate::Args),
     /// Old name of `study` (hidden alias, kept one release).
     #[command(hide = true)]
@@ -119,8 +128,10 @@ enum Command {
     #[command(hide = true)]
     Merge(tabulate::Args),
     /// Write a parameterised benchmark circuit.
+    #[command(after_help = "Port order and names: docs/generated-circuits.md.")]
     Generate(generate::Args),
     /// List, show or check cell libraries.
+    #[command(after_help = "The library file format: docs/library-format.md.")]
     Library(library::Args),
     /// Derive a cell library from a device kit's conductance tables.
     Characterize(characterize::Args),

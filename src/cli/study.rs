@@ -2,6 +2,7 @@
 //! append one result line per finished job, resuming where a previous run
 //! stopped.
 
+use super::common::counted;
 use super::compare::cli_error;
 use super::{CliError, CmdResult, EXIT_OK};
 use crate::study::run::{run_study, StudyOptions};
@@ -44,8 +45,8 @@ pub fn run(args: Args) -> CmdResult {
     };
     let summary = run_study(&plan, &args.output, &options).map_err(cli_error)?;
     eprintln!(
-        "study: {} jobs{}, {} already in {}, {} done, {} failed",
-        summary.jobs,
+        "study: {}{}, {} already in {}, {} done, {} failed",
+        counted(summary.jobs as u64, "job"),
         match args.shard {
             Some(s) => format!(" in shard {}/{}", s.index, s.count),
             None => String::new(),
@@ -67,8 +68,8 @@ pub fn run(args: Args) -> CmdResult {
         None => Ok(EXIT_OK),
         Some((_, _, StudyError::Internal(m))) => Err(CliError::Internal(m.clone())),
         Some((_, _, StudyError::Input(m))) => Err(CliError::Input(format!(
-            "{} job(s) failed; first: {m}",
-            summary.failures.len()
+            "{} failed; first: {m}",
+            counted(summary.failures.len() as u64, "job")
         ))),
     }
 }

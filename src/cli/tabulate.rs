@@ -32,14 +32,18 @@ pub struct Args {
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
+    super::compare::check_chart(args.chart.as_deref())?;
+    if let Some(path) = &args.output {
+        crate::fsutil::check_writable(path).map_err(CliError::Input)?;
+    }
     let merged = read_results(&args.results)?;
     for file in &merged.truncated {
         eprintln!("note: {file}: ignored an unfinished last line (an interrupted study run)");
     }
     if merged.duplicates > 0 {
         eprintln!(
-            "note: dropped {} duplicate result line(s) (same plan_key)",
-            merged.duplicates
+            "note: dropped {} (same plan_key)",
+            super::common::counted(merged.duplicates as u64, "duplicate result line")
         );
     }
     if let Some(b) = &args.baseline {

@@ -24,7 +24,7 @@
 //! - `write`: file text with a header comment, and the shipped benchmark
 //!   set under `benchmarks/`.
 //!
-//! Port contract (DESIGN.md): inputs are declared as `a[0..n-1]`, then
+//! Port contract (docs/generated-circuits.md): inputs are declared as `a[0..n-1]`, then
 //! `b[0..n-1]`, then any others (carry-in last); outputs are one bus, least
 //! significant bit first, bit 0 least significant. Each family's doc on
 //! [`Family`] names its ports. Generation is deterministic: the same family

@@ -4,7 +4,7 @@
 //! read on its own (with serde, into its Rust type) so that every problem can
 //! name its cell and field; [`Positions`] supplies the line and column that a
 //! value tree forgets. All problems are collected before failing. The checks
-//! follow DESIGN.md: unknown fields, duplicate names, functions that ignore an
+//! follow docs/library-format.md: unknown fields, duplicate names, functions that ignore an
 //! input, negative costs, missing delay models, more than six inputs, and a
 //! cell set that is not functionally complete with free constants.
 

@@ -2,7 +2,7 @@
 //!
 //! A [`Library`] is a list of combinational [`Cell`]s, each with its Boolean
 //! function as a truth table and its costs, plus optional storage cells. The
-//! on-disk format is `ribbonmap-library/1` (JSON, see DESIGN.md).
+//! on-disk format is `ribbonmap-library/1` (JSON, see docs/library-format.md).
 //!
 //! The children split the work: `load` reads and checks a file
 //! ([`Library::from_json_str`], [`Library::load`]) and collects every problem

@@ -1,6 +1,6 @@
 //! The cost report of a mapped netlist: cell counts, area, devices, depth,
 //! delay, verification status and seconds per phase, as JSON (fields fixed
-//! by DESIGN.md) and as text for a terminal.
+//! by docs/json-output.md) and as text for a terminal.
 
 use super::{MappedNetlist, TimingReport, Verified};
 use crate::library::Library;

@@ -1,5 +1,5 @@
 //! Static timing of a mapped netlist under the library's load-dependent
-//! delay model (DESIGN.md): the delay of an instance is
+//! delay model (docs/library-format.md): the delay of an instance is
 //! `intrinsic + per_load * load`, where the load of its output net is the sum
 //! of the `input_load` of the pins it drives plus `primary_output_load` for
 //! each primary output it drives. The data input of a storage element counts

@@ -60,7 +60,7 @@ fn trivial_cases_fold() {
 
 #[test]
 fn every_operator_matches_its_truth_table() {
-    // Reference values: a = 0xAA, b = 0xCC, c = 0xF0 (DESIGN.md convention).
+    // Reference values: a = 0xAA, b = 0xCC, c = 0xF0 (docs/library-format.md, truth-table convention).
     let (mut n, [a, b, c]) = three_inputs();
     let cases: [(Lit, u64); 6] = [
         (n.and(a, b), 0xAA & 0xCC),

@@ -156,12 +156,27 @@ pub fn compare(
     libraries: &[Library],
     options: &EvaluateOptions,
 ) -> Result<Vec<StudyRecord>, StudyError> {
+    compare_reporting(benchmarks, libraries, options, || {})
+}
+
+/// [`compare`], calling `done` after each benchmark × library pair (from
+/// the worker threads), for a progress display.
+pub fn compare_reporting(
+    benchmarks: &[(String, Network)],
+    libraries: &[Library],
+    options: &EvaluateOptions,
+    done: impl Fn() + Sync,
+) -> Result<Vec<StudyRecord>, StudyError> {
     use rayon::prelude::*;
     let pairs: Vec<(usize, usize)> = (0..benchmarks.len())
         .flat_map(|b| (0..libraries.len()).map(move |l| (b, l)))
         .collect();
     pairs
         .par_iter()
-        .map(|&(b, l)| evaluate(&benchmarks[b].0, &benchmarks[b].1, &libraries[l], options))
+        .map(|&(b, l)| {
+            let record = evaluate(&benchmarks[b].0, &benchmarks[b].1, &libraries[l], options);
+            done();
+            record
+        })
         .collect()
 }

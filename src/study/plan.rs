@@ -1,6 +1,6 @@
 //! Study plans: which benchmarks to map on which libraries with which goals.
 //!
-//! A plan is a JSON file (DESIGN.md contract) naming benchmarks (file globs
+//! A plan is a JSON file (docs/study.md) naming benchmarks (file globs
 //! relative to the plan's folder, or generator specifications), libraries
 //! (built-in names or files), goals and mapping options. [`Plan::load`]
 //! parses it, reporting syntax and type errors at their line and column, and

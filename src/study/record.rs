@@ -2,7 +2,7 @@
 //!
 //! A [`StudyRecord`] carries every number the tables and charts need and is
 //! also the line format of study result files: it serialises to the `map`
-//! report fields (DESIGN.md contract: `design`, `library`, `goal`, `cells`,
+//! report fields (docs/study.md: `design`, `library`, `goal`, `cells`,
 //! `cell_count`, `area`, `depth`, `delay`, `devices`, `verified`, `seconds`)
 //! plus `benchmark`, `plan_key` and the energy figures. Fields this crate
 //! does not know (added by later versions of the map report) are kept in

@@ -470,7 +470,7 @@ mod tests {
 
     #[test]
     fn majority_and_xor3_match_the_convention() {
-        // DESIGN.md convention: maj3 = 0xE8, xor3 = 0x96.
+        // Truth-table convention (docs/library-format.md): maj3 = 0xE8, xor3 = 0x96.
         assert_eq!(
             expression_truth("maj(a, b, c)", &["a", "b", "c"]).unwrap(),
             0xE8

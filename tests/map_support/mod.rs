@@ -108,7 +108,7 @@ pub fn nand_nor_inv() -> Library {
     )
 }
 
-/// Inputs a[0..n], b[0..n] in the port order of generated circuits (docs/netlist-formats.md).
+/// Inputs a[0..n], b[0..n] in the order of docs/generated-circuits.md.
 pub fn operands(net: &mut Network, n: usize) -> (Vec<Lit>, Vec<Lit>) {
     let a = (0..n)
         .map(|i| net.add_input(format!("a[{i}]")).unwrap())

@@ -1,0 +1,321 @@
+//! Messages and formats that keep their word (issue 18): every `--format`
+//! lists exactly what the command prints, files are checked before long
+//! work, no message shows a temporary file, counts agree with their nouns,
+//! absurd option values are refused with the allowed range, and an `exact`
+//! search that stops undecided says so.
+//!
+//! The expected texts are the documented ones (docs/cli.md, docs/exit-codes.md).
+
+use assert_cmd::Command;
+
+fn ribbonmap(args: &[&str]) -> std::process::Output {
+    let cache = tempfile::tempdir().unwrap();
+    Command::cargo_bin("ribbonmap")
+        .unwrap()
+        .env("RIBBONMAP_CACHE_DIR", cache.path())
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+fn stderr(out: &std::process::Output) -> String {
+    String::from_utf8_lossy(&out.stderr).into_owned()
+}
+
+const C17: &str = "tests/data/reference/netlists/iscas85/c17.v";
+
+#[test]
+fn each_format_option_lists_exactly_what_the_command_prints() {
+    for (args, listed) in [
+        (vec!["map", C17], "[possible values: text, json]"),
+        (
+            vec!["exact", "0xE8", "--inputs", "3"],
+            "[possible values: text, json]",
+        ),
+        (vec!["equiv", C17, C17], "[possible values: text, json]"),
+        (vec!["inspect", C17], "[possible values: text, json]"),
+    ] {
+        for bad in ["csv", "markdown", "latex"] {
+            let mut full = args.clone();
+            full.extend(["--format", bad]);
+            let out = ribbonmap(&full);
+            assert_eq!(out.status.code(), Some(2), "{full:?}");
+            assert!(stderr(&out).contains(listed), "{full:?}: {}", stderr(&out));
+        }
+    }
+    let out = ribbonmap(&[
+        "generate",
+        "adder",
+        "--width",
+        "4",
+        "--output-format",
+        "bench",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        stderr(&out).contains("[possible values: blif, verilog]"),
+        "{}",
+        stderr(&out)
+    );
+}
+
+#[test]
+fn output_folders_are_checked_before_mapping_and_no_temporary_name_shows() {
+    // The folder's own name must not look like a temporary file's.
+    let dir = tempfile::Builder::new()
+        .prefix("outputs")
+        .tempdir()
+        .unwrap();
+    let missing = dir.path().join("no-such-folder/out.v");
+    let out = ribbonmap(&["map", C17, "-o", missing.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(2));
+    let text = stderr(&out);
+    assert!(text.contains("does not exist"), "{text}");
+    // Mapping never started: no report on standard output.
+    assert!(out.stdout.is_empty());
+    assert_eq!(text.lines().count(), 1, "{text}");
+    assert!(!text.contains(".tmp"), "{text}");
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        let locked = dir.path().join("locked");
+        std::fs::create_dir(&locked).unwrap();
+        std::fs::set_permissions(&locked, std::fs::Permissions::from_mode(0o500)).unwrap();
+        // Root may write anywhere; the check only means something otherwise.
+        if tempfile::NamedTempFile::new_in(&locked).is_err() {
+            let out = ribbonmap(&["map", C17, "-o", locked.join("x.blif").to_str().unwrap()]);
+            assert_eq!(out.status.code(), Some(2));
+            assert!(!stderr(&out).contains(".tmp"), "{}", stderr(&out));
+        }
+    }
+}
+
+#[test]
+fn charts_are_svg_files() {
+    let out = ribbonmap(&["compare", C17, "--verify", "none", "--chart", "cells.png"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("ending in .svg"), "{}", stderr(&out));
+    assert!(out.stdout.is_empty(), "refused before mapping");
+}
+
+#[test]
+fn absurd_counts_are_refused_with_the_allowed_range() {
+    for (args, range) in [
+        (vec!["compare", C17, "--patterns", "0"], "2..=16777216"),
+        (
+            vec!["compare", C17, "--patterns", "99999999999"],
+            "2..=16777216",
+        ),
+        (vec!["compare", C17, "--jobs", "100000"], "1..=1024"),
+        (vec!["map", C17, "--cut-size", "40"], "2..=6"),
+        (vec!["map", C17, "--cuts-per-node", "0"], "1..=64"),
+        (
+            vec!["exact", "0xE8", "--inputs", "3", "--max-steps", "1000"],
+            "1..=16",
+        ),
+    ] {
+        let out = ribbonmap(&args);
+        assert_eq!(out.status.code(), Some(2), "{args:?}");
+        assert!(stderr(&out).contains(range), "{args:?}: {}", stderr(&out));
+    }
+}
+
+#[test]
+fn exact_that_stops_undecided_says_undecided() {
+    // One conflict per SAT call cannot settle the full adder on ribbon2
+    // (exit code 3 is "undecided", the exit-code contract).
+    let out = ribbonmap(&[
+        "exact",
+        "0x96,0xE8",
+        "--inputs",
+        "3",
+        "--lib",
+        "ribbon2",
+        "--conflict-limit",
+        "1",
+    ]);
+    let text = stderr(&out);
+    assert_eq!(out.status.code(), Some(3), "{text}");
+    if !text.is_empty() {
+        assert!(text.starts_with("undecided:"), "{text}");
+        assert!(!text.contains("error:"), "{text}");
+    }
+}
+
+#[test]
+fn exact_json_names_signals_by_documented_fields() {
+    // Majority of three is one maj3 cell of ribbon3 (truth table 0xE8, the
+    // crate's convention).
+    let out = ribbonmap(&["exact", "0xE8", "--inputs", "3", "--format", "json"]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["cells"], 1);
+    let step = &v["steps"][0];
+    assert_eq!(step["cell"], "maj3");
+    for (k, fanin) in step["fanins"].as_array().unwrap().iter().enumerate() {
+        assert_eq!(fanin["from"], "input");
+        assert_eq!(fanin["index"], k);
+        assert_eq!(fanin["complemented"], false);
+    }
+    assert_eq!(v["outputs"][0]["from"], "step");
+    assert!(!String::from_utf8_lossy(&out.stdout).contains("\"Input\""));
+}
+
+#[test]
+fn counts_agree_with_their_nouns() {
+    let dir = tempfile::tempdir().unwrap();
+    let plan = dir.path().join("plan.json");
+    std::fs::write(
+        &plan,
+        r#"{"benchmarks": [{"generate": "parity", "width": 3}], "libraries": ["ribbon3"],
+            "goals": ["area"], "options": {"verify": "none", "patterns": 64}}"#,
+    )
+    .unwrap();
+    let results = dir.path().join("r.jsonl");
+    let out = ribbonmap(&[
+        "study",
+        plan.to_str().unwrap(),
+        "-o",
+        results.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    assert!(stderr(&out).contains("study: 1 job,"), "{}", stderr(&out));
+    let out = ribbonmap(&["exact", "0x2", "--inputs", "1"]);
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("over 1 input\n"), "{text}");
+}
+
+#[test]
+fn inspect_says_how_storage_counts_in_the_largest_support() {
+    let out = ribbonmap(&[
+        "inspect",
+        "tests/data/reference/netlists/iscas89/s27.v",
+        "--storage",
+        "ff:D:Q:CK",
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("storage outputs as inputs"), "{text}");
+    let out = ribbonmap(&["inspect", C17]);
+    assert!(!String::from_utf8_lossy(&out.stdout).contains("storage outputs"));
+}
+
+#[test]
+fn study_plans_are_checked_whole_and_absolute_paths_kept() {
+    let dir = tempfile::tempdir().unwrap();
+    let net = dir.path().join("c17.v");
+    std::fs::copy(C17, &net).unwrap();
+    let plan = dir.path().join("plan.json");
+    let results = dir.path().join("r.jsonl");
+    // A cut size the mapper refuses stops the run before any job.
+    std::fs::write(
+        &plan,
+        format!(
+            "{{\"benchmarks\": [\"{}\"],\n \"libraries\": [\"ribbon3\"],\n \"options\": {{\"cut_size\": 9}}}}",
+            net.display()
+        ),
+    )
+    .unwrap();
+    let out = ribbonmap(&[
+        "study",
+        plan.to_str().unwrap(),
+        "-o",
+        results.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(stderr(&out).contains("plan.json:3:"), "{}", stderr(&out));
+    assert!(stderr(&out).contains("2 to 6"), "{}", stderr(&out));
+    assert!(!results.exists() || std::fs::read(&results).unwrap().is_empty());
+    // A library of another shard that does not load also stops shard 1.
+    std::fs::write(
+        &plan,
+        format!(
+            "{{\"benchmarks\": [\"{}\"], \"libraries\": [\"ribbon3\", \"nope.json\"], \"options\": {{\"verify\": \"none\", \"patterns\": 64}}}}",
+            net.display()
+        ),
+    )
+    .unwrap();
+    let out = ribbonmap(&[
+        "study",
+        plan.to_str().unwrap(),
+        "-o",
+        results.to_str().unwrap(),
+        "--shard",
+        "1/9",
+    ]);
+    assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
+    assert!(stderr(&out).contains("nope.json"), "{}", stderr(&out));
+    // An absolute path is written back as given, with one leading slash.
+    std::fs::write(
+        &plan,
+        format!(
+            "{{\"benchmarks\": [\"{}\"], \"libraries\": [\"ribbon3\"], \"goals\": [\"area\"], \"options\": {{\"verify\": \"none\", \"patterns\": 64}}}}",
+            net.display()
+        ),
+    )
+    .unwrap();
+    let out = ribbonmap(&[
+        "study",
+        plan.to_str().unwrap(),
+        "-o",
+        results.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let line: serde_json::Value = serde_json::from_str(
+        std::fs::read_to_string(&results)
+            .unwrap()
+            .lines()
+            .next()
+            .unwrap(),
+    )
+    .unwrap();
+    assert_eq!(line["benchmark_spec"], net.to_str().unwrap());
+    // A result line the study cannot use is refused, naming its line.
+    let mut text = std::fs::read_to_string(&results).unwrap();
+    text.push_str("{\"plan_key\": \"x\"}\n");
+    std::fs::write(&results, &text).unwrap();
+    let out = ribbonmap(&[
+        "study",
+        plan.to_str().unwrap(),
+        "-o",
+        results.to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        stderr(&out).contains("r.jsonl:2:1: bad result line"),
+        "{}",
+        stderr(&out)
+    );
+}
+
+#[test]
+fn old_option_names_still_work_for_one_release_with_a_note() {
+    // --optimize is the old name of --restructure (hidden alias).
+    let out = ribbonmap(&[
+        "map",
+        C17,
+        "--verify",
+        "none",
+        "--optimize",
+        "--format",
+        "json",
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    assert!(
+        stderr(&out).contains("now called --restructure"),
+        "{}",
+        stderr(&out)
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert!(v["seconds"]["restructure"].as_f64().is_some(), "{v}");
+    let help = ribbonmap(&["map", "--help"]);
+    let help = String::from_utf8_lossy(&help.stdout);
+    assert!(
+        help.contains("--restructure") && help.contains("--exact-cuts"),
+        "{help}"
+    );
+    assert!(
+        !help.contains("--optimize") && !help.contains("--optimum"),
+        "{help}"
+    );
+}
