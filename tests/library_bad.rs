@@ -248,3 +248,22 @@ fn loading_a_broken_library_for_mapping_is_bad_input() {
     assert_eq!(err.exit_code(), 2);
     assert!(ribbonmap::cli::common::load_library("cmos-le").is_ok());
 }
+
+#[test]
+fn a_library_without_cells_names_the_missing_field() {
+    // Killed a surviving mutant (the problem lost its field name): the
+    // `cells` list is required (docs/library-format.md).
+    let text = r#"{
+  "format": "ribbonmap-library/1",
+  "name": "empty",
+  "units": {"area": "um2", "delay": "ns", "energy": "fJ", "power": "uW"}
+}"#;
+    let err = Library::from_json_str(text, "empty.json").unwrap_err();
+    let problem = err
+        .problems
+        .iter()
+        .find(|p| p.message.contains("missing: expected a list of cells"))
+        .unwrap_or_else(|| panic!("{err}"));
+    assert_eq!(problem.field.as_deref(), Some("cells"));
+    assert_eq!(problem.cell, None);
+}
