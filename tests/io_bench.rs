@@ -34,7 +34,7 @@ fn expected(gate: &str, n: usize) -> u64 {
             "OR" => ones > 0,
             "NOR" => ones == 0,
             "XOR" => ones % 2 == 1,
-            "XNOR" => ones % 2 == 0,
+            "XNOR" => ones.is_multiple_of(2),
             "NOT" => row & 1 == 0,
             "BUFF" | "BUF" => row & 1 == 1,
             other => panic!("{other}"),

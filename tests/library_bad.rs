@@ -342,3 +342,22 @@ fn empty_and_non_utf8_library_files_are_bad_input_at_a_position() {
     assert_located_bad_input(&out, &latin1, "4:19: ");
     assert!(String::from_utf8_lossy(&out.stderr).contains("0xE9"));
 }
+
+#[test]
+fn a_library_without_cells_names_the_missing_field() {
+    // Killed a surviving mutant (the problem lost its field name): the
+    // `cells` list is required (docs/library-format.md).
+    let text = r#"{
+  "format": "ribbonmap-library/1",
+  "name": "empty",
+  "units": {"area": "um2", "delay": "ns", "energy": "fJ", "power": "uW"}
+}"#;
+    let err = Library::from_json_str(text, "empty.json").unwrap_err();
+    let problem = err
+        .problems
+        .iter()
+        .find(|p| p.message.contains("missing: expected a list of cells"))
+        .unwrap_or_else(|| panic!("{err}"));
+    assert_eq!(problem.field.as_deref(), Some("cells"));
+    assert_eq!(problem.cell, None);
+}
