@@ -86,10 +86,12 @@ pub fn run(args: Args) -> CmdResult {
         None => None,
         Some(p) => match p.extension().and_then(|e| e.to_str()) {
             Some(e @ ("v" | "blif" | "aag" | "aig")) => Some(e.to_string()),
-            _ => return Err(CliError::Input(format!(
+            _ => {
+                return Err(CliError::Input(format!(
                 "{}: cannot tell the output format (expected a .v, .blif, .aag or .aig file name)",
                 p.display()
-            ))),
+            )))
+            }
         },
     };
     let t = Instant::now();
