@@ -1,12 +1,16 @@
 //! Reader throughput: a generated netlist of more than a million AND/XOR
-//! nodes, written with the BLIF and Verilog writers, read back (parsing,
+//! nodes and the 256 x 256 multiplier of `generate` (default style), written with the
+//! BLIF, Verilog and AIGER (ASCII and binary) writers, read back (parsing,
 //! elaboration and structural hashing). Criterion reports bytes per second;
 //! the bench also prints nodes per second and writes the BLIF text to
 //! `target/read-bench-mesh.blif` so peak memory of `ribbonmap inspect` can be
 //! measured on the same file.
 
 use criterion::{criterion_group, criterion_main, Criterion, Throughput};
-use ribbonmap::io::{read_netlist_str, write_blif, write_verilog, NetlistFormat, ReadOptions};
+use ribbonmap::generate::{generate, Family, Params};
+use ribbonmap::io::{
+    read_netlist_bytes, write_aiger, write_blif, write_verilog, NetlistFormat, ReadOptions,
+};
 use ribbonmap::network::{Lit, Network, SplitMix64};
 use std::time::Instant;
 
@@ -45,39 +49,55 @@ fn mesh(nodes: usize) -> Network {
 }
 
 fn bench_read(c: &mut Criterion) {
-    let net = mesh(1_000_000);
-    let blif = write_blif(&net);
-    let verilog = write_verilog(&net);
+    let mesh = mesh(1_000_000);
     let _ = std::fs::create_dir_all("target");
-    let _ = std::fs::write("target/read-bench-mesh.blif", &blif);
+    let _ = std::fs::write("target/read-bench-mesh.blif", write_blif(&mesh));
+    let multiplier = generate(
+        Family::Multiplier,
+        &Params {
+            width: 256,
+            style: None,
+            carry_in: false,
+        },
+    )
+    .expect("the 256 x 256 multiplier generates");
     let opts = ReadOptions::default();
-    for (label, text, format) in [
-        ("blif", &blif, NetlistFormat::Blif),
-        ("verilog", &verilog, NetlistFormat::Verilog),
-    ] {
-        // One timed read outside criterion for a nodes-per-second figure.
-        let start = Instant::now();
-        let back = read_netlist_str(text, label, format, &opts).unwrap();
-        let secs = start.elapsed().as_secs_f64();
-        println!(
-            "read {label}: {} nodes, {:.1} MB in {secs:.3} s = {:.1} MB/s, {:.2} M nodes/s, {} MB network",
-            back.num_nodes(),
-            text.len() as f64 / 1e6,
-            text.len() as f64 / 1e6 / secs,
-            back.num_nodes() as f64 / 1e6 / secs,
-            back.memory_bytes() / 1_000_000
-        );
-        let mut group = c.benchmark_group("read");
-        group.sample_size(10);
-        group.throughput(Throughput::Bytes(text.len() as u64));
-        group.bench_function(format!("{label}_1M_nodes"), |b| {
-            b.iter(|| {
-                read_netlist_str(text, label, format, &opts)
-                    .unwrap()
-                    .num_nodes()
-            })
-        });
-        group.finish();
+    for (design, net) in [("mesh_1M", &mesh), ("multiplier_256", &multiplier)] {
+        let files: [(&str, Vec<u8>, NetlistFormat); 4] = [
+            ("blif", write_blif(net).into_bytes(), NetlistFormat::Blif),
+            (
+                "verilog",
+                write_verilog(net).into_bytes(),
+                NetlistFormat::Verilog,
+            ),
+            ("aag", write_aiger(net, false, None), NetlistFormat::Aag),
+            ("aig", write_aiger(net, true, None), NetlistFormat::Aig),
+        ];
+        for (label, bytes, format) in files {
+            // One timed read outside criterion for a nodes-per-second figure.
+            let start = Instant::now();
+            let back = read_netlist_bytes(&bytes, label, format, &opts).unwrap();
+            let secs = start.elapsed().as_secs_f64();
+            println!(
+                "read {design} {label}: {} nodes, {:.1} MB in {secs:.3} s = {:.1} MB/s, {:.2} M nodes/s, {} MB network",
+                back.num_nodes(),
+                bytes.len() as f64 / 1e6,
+                bytes.len() as f64 / 1e6 / secs,
+                back.num_nodes() as f64 / 1e6 / secs,
+                back.memory_bytes() / 1_000_000
+            );
+            let mut group = c.benchmark_group("read");
+            group.sample_size(10);
+            group.throughput(Throughput::Bytes(bytes.len() as u64));
+            group.bench_function(format!("{label}_{design}"), |b| {
+                b.iter(|| {
+                    read_netlist_bytes(&bytes, label, format, &opts)
+                        .unwrap()
+                        .num_nodes()
+                })
+            });
+            group.finish();
+        }
     }
 }
 

@@ -125,10 +125,14 @@ impl<'a> Iterator for Lines<'a> {
 
 /// Tokens of a line with their 1-based columns.
 fn tokens(text: &str) -> Vec<(&str, u32)> {
-    let mut out = Vec::new();
+    token_iter(text).collect()
+}
+
+/// The tokens of a line one by one, with their 1-based columns.
+fn token_iter(text: &str) -> impl Iterator<Item = (&str, u32)> {
     let bytes = text.as_bytes();
     let mut i = 0;
-    while i < bytes.len() {
+    std::iter::from_fn(move || {
         while i < bytes.len() && bytes[i].is_ascii_whitespace() {
             i += 1;
         }
@@ -136,11 +140,8 @@ fn tokens(text: &str) -> Vec<(&str, u32)> {
         while i < bytes.len() && !bytes[i].is_ascii_whitespace() {
             i += 1;
         }
-        if i > start {
-            out.push((&text[start..i], start as u32 + 1));
-        }
-    }
-    out
+        (i > start).then(|| (&text[start..i], start as u32 + 1))
+    })
 }
 
 /// A model found by the first pass.
@@ -220,6 +221,9 @@ pub fn read(text: &str, file: &str, opts: &ReadOptions) -> Result<Network, Sourc
         })
         .collect();
     limits::check_hierarchy(&flat, &sizes, top, opts.max_nets(), "model")?;
+    // A BLIF file spends about 20 bytes per net (one '.names' line and its
+    // rows); reserving that much saves rehashing the name table.
+    flat.reserve_nets(text.len() / 20);
     let mut reader = Reader {
         text,
         models: &models,
@@ -242,9 +246,16 @@ fn index_models(text: &str, file: &str) -> Result<Vec<Model>, SourceError> {
     let mut models: Vec<Model> = Vec::new();
     let mut open = false;
     for line in Lines::new(text, 0, 1) {
-        let toks = tokens(&line.text);
-        let Some(&(cmd, col)) = toks.first() else {
+        let mut words = token_iter(&line.text);
+        let Some((cmd, col)) = words.next() else {
             continue;
+        };
+        // Only the lines that declare models and ports are split whole.
+        let toks: Vec<(&str, u32)> = if matches!(cmd, ".model" | ".inputs" | ".outputs" | ".subckt")
+        {
+            std::iter::once((cmd, col)).chain(words).collect()
+        } else {
+            Vec::new()
         };
         match cmd {
             ".model" => {

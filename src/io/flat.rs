@@ -178,6 +178,19 @@ impl Flat {
         self.max_nets = max_nets;
     }
 
+    /// Reserves room for about `nets` nets (a guess from the file size,
+    /// capped by the net limit), so the name table is not rehashed while
+    /// a large file is read.
+    pub fn reserve_nets(&mut self, nets: usize) {
+        let nets = nets.min(self.max_nets.min(1 << 24) as usize);
+        self.names.reserve(nets);
+        self.name_net.reserve(nets);
+        self.net_name_index.reserve(nets);
+        self.drivers.reserve(nets);
+        self.driver_loc.reserve(nets);
+        self.use_loc.reserve(nets);
+    }
+
     /// The most one-bit nets the design may have.
     pub fn max_nets(&self) -> u64 {
         self.max_nets
@@ -581,7 +594,8 @@ impl Flat {
                             Lit::FALSE
                         }
                     }
-                    GateOp::Truth(t) => network.from_truth(t, &scratch[..scratch.len().min(6)]),
+                    GateOp::Truth(t) => small_truth(network, t, scratch)
+                        .unwrap_or_else(|| network.from_truth(t, &scratch[..scratch.len().min(6)])),
                 };
                 lit.xor(invert)
             }
@@ -611,6 +625,74 @@ impl Flat {
             }
             Driver::Constant | Driver::Undriven => Lit::FALSE,
             Driver::Input | Driver::Storage => lits[net as usize],
+        }
+    }
+}
+
+/// Builds the truth table `t` over one or two fanins directly (the common
+/// cells and covers of BLIF files), without the general decomposition;
+/// `None` for wider tables.
+fn small_truth(network: &mut Network, t: u64, fanins: &[Lit]) -> Option<Lit> {
+    match fanins {
+        [a] => Some(match t & 0b11 {
+            0b00 => Lit::FALSE,
+            0b11 => Lit::TRUE,
+            0b10 => *a,
+            _ => !*a,
+        }),
+        [a, b] => {
+            let t = t & 0b1111;
+            // Literal of fanin i that is true on row r.
+            let on = |r: u64| (a.xor(r & 1 == 0), b.xor(r >> 1 & 1 == 0));
+            Some(match t.count_ones() {
+                0 => Lit::FALSE,
+                4 => Lit::TRUE,
+                1 => {
+                    let (x, y) = on(t.trailing_zeros() as u64);
+                    network.and(x, y)
+                }
+                3 => {
+                    let (x, y) = on((!t & 0b1111).trailing_zeros() as u64);
+                    !network.and(x, y)
+                }
+                _ => match t {
+                    0b0110 => network.xor(*a, *b),
+                    0b1001 => !network.xor(*a, *b),
+                    0b1010 => *a,
+                    0b0101 => !*a,
+                    0b1100 => *b,
+                    _ => !*b,
+                },
+            })
+        }
+        _ => None,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn small_truth_tables_match_the_general_decomposition() {
+        // Every one- and two-input table, compared by exhaustive simulation
+        // with Network::from_truth (the general construction).
+        for n in 1..=2usize {
+            for t in 0..(1u64 << (1 << n)) {
+                let mut net = Network::new("t");
+                let ins: Vec<Lit> = (0..n)
+                    .map(|i| net.add_input(format!("x{i}")).unwrap())
+                    .collect();
+                let fast = small_truth(&mut net, t, &ins).unwrap();
+                let general = net.from_truth(t, &ins);
+                net.add_output("fast", fast).unwrap();
+                net.add_output("general", general).unwrap();
+                let words = [0b1010u64, 0b1100];
+                let out = net.simulate_outputs(&words[..n]);
+                let rows = (1u64 << (1 << n)) - 1;
+                assert_eq!(out[0] & rows, t, "n={n} t={t:b}");
+                assert_eq!(out[1] & rows, t, "n={n} t={t:b}");
+            }
         }
     }
 }

@@ -206,6 +206,9 @@ impl<'a, 'm, 'o> Elaborator<'a, 'm, 'o> {
     }
 
     fn bit_net(&mut self, scope: &Scope, name: &str, index: Option<i64>) -> u32 {
+        if index.is_none() && scope.prefix.is_empty() {
+            return self.flat.net(name);
+        }
         let full = match index {
             Some(i) => format!("{}{name}[{i}]", scope.prefix),
             None => format!("{}{name}", scope.prefix),
