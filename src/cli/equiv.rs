@@ -11,9 +11,10 @@ use serde_json::{json, Map, Value};
 use super::common::{load_library, ReportFormat};
 use super::netlist_args::{library_for, NetlistArgs};
 use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK, EXIT_UNDECIDED};
+use crate::equiv::algebra::DEFAULT_TERM_LIMIT;
 use crate::equiv::{
-    check_with_stats, parse_port_map, Counterexample, EquivError, EquivOptions, EquivReport,
-    PortMatching, Verdict,
+    check_with_stats, parse_port_map, AlgebraOptions, ArithSpec, Counterexample, EquivError,
+    EquivOptions, EquivReport, PortMatching, Verdict,
 };
 
 /// Arguments of `ribbonmap equiv`.
@@ -36,6 +37,15 @@ pub struct Args {
     /// Work limit of one SAT call in conflicts (0: none).
     #[arg(long, value_name = "N", default_value_t = EquivOptions::default().conflict_limit)]
     pub conflict_limit: u64,
+    /// Prove each netlist against this word-level function by algebraic
+    /// rewriting (multipliers, adders, multiply-accumulate); the input words
+    /// follow --ports (`order`: the generated-circuit order, otherwise bus
+    /// names). See docs/equiv-spec.md.
+    #[arg(long, value_name = "mul|add|mac")]
+    pub spec: Option<ArithSpec>,
+    /// Monomials at most in the polynomial of a --spec proof (0: none).
+    #[arg(long, value_name = "N", default_value_t = DEFAULT_TERM_LIMIT)]
+    pub term_limit: usize,
     /// Report format.
     #[arg(long, value_enum, default_value = "text")]
     pub format: ReportFormat,
@@ -68,6 +78,10 @@ pub fn run(args: Args) -> CmdResult {
     let opts = EquivOptions {
         ports,
         conflict_limit: args.conflict_limit,
+        spec: args.spec,
+        algebra: AlgebraOptions {
+            term_limit: args.term_limit,
+        },
         ..EquivOptions::default()
     };
     let report = check_with_stats(&a, &b, &opts).map_err(|e| match e {
@@ -90,6 +104,21 @@ pub fn run(args: Args) -> CmdResult {
         Verdict::Different { .. } => EXIT_NEGATIVE,
         Verdict::Undecided { .. } => EXIT_UNDECIDED,
     })
+}
+
+/// What to try when a limit stopped the proof: the option that sets the
+/// limit, and the algebraic route for arithmetic circuits.
+fn limit_hint(report: &EquivReport) -> String {
+    match (report.stats.stopped_by.as_deref(), &report.stats.spec) {
+        (Some("--term-limit"), Some(spec)) => format!(
+            "the polynomial of the --spec {} proof outgrew --term-limit (first netlist {}, second {}); raise --term-limit N (0: none)\n",
+            spec.spec, spec.a, spec.b
+        ),
+        (Some(option), _) => format!(
+            "raise {option} N (0: none); for multipliers and adders, --spec mul|add|mac proves each side against the integer function instead\n"
+        ),
+        (None, _) => String::new(),
+    }
 }
 
 fn counterexample_json(cex: &Counterexample) -> Value {
@@ -164,6 +193,7 @@ pub fn to_text(report: &EquivReport, a: &Path, b: &Path) -> String {
             for o in outputs {
                 s += &format!("  {o}\n");
             }
+            s += &limit_hint(report);
         }
         Verdict::Different { counterexample, .. } => {
             let cex = counterexample;

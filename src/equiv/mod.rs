@@ -20,8 +20,9 @@
 //!    groups nodes with equal values up to complement into candidate classes;
 //!    an output pair whose values already differ yields a counterexample at
 //!    once.
-//!    Miters with few inputs (16 by default) are instead proven by enumerating every
-//!    input pattern ([`exhaustive`]), a complete proof.
+//!    Miters with few inputs (24 by default) are instead proven by
+//!    enumerating every input pattern on all cores ([`exhaustive`]), a
+//!    complete proof.
 //! 4. [`sweep`] proves candidate pairs bottom-up, merging what it proves and
 //!    refining the classes with every counterexample. Each pair is first
 //!    tried on a small [`window`] of logic below it (a fresh solver, the
@@ -33,6 +34,12 @@
 //!    (window first, then the oracle); a satisfiable oracle query gives the
 //!    counterexample, [`replay`] checks it on the original networks and
 //!    lists the outputs it separates.
+//!
+//! Multipliers and adders of different architectures share too little
+//! logic for sweeping; with [`EquivOptions::spec`] set, each side is instead
+//! proven against the word-level specification by [`algebra`] (backward
+//! rewriting), and a side that fails gives a counterexample replayed on both
+//! networks.
 //!
 //! # Example
 //!
@@ -56,15 +63,18 @@
 //! assert!(matches!(verdict, Verdict::Equivalent { outputs_checked: 1 }));
 //! ```
 
+pub mod algebra;
 pub(crate) mod classes;
 mod exhaustive;
 mod miter;
 pub(crate) mod oracle;
 mod ports;
+mod progress;
 mod replay;
 mod sweep;
 mod window;
 
+pub use algebra::{AlgebraOptions, AlgebraStats, ArithSpec};
 pub use oracle::OracleStats;
 pub use ports::parse_port_map;
 pub use sweep::SweepStats;
@@ -115,6 +125,12 @@ pub struct EquivOptions {
     /// candidate pair before the global solver (0 turns window proofs off).
     /// See the `window` module.
     pub window_gates: usize,
+    /// Prove each side against this word-level function instead of
+    /// sweeping (see [`algebra`]); the words follow [`EquivOptions::ports`]:
+    /// declaration order for [`PortMatching::ByOrder`], bus names otherwise.
+    pub spec: Option<ArithSpec>,
+    /// Limits of the algebraic proof.
+    pub algebra: AlgebraOptions,
 }
 
 impl Default for EquivOptions {
@@ -125,8 +141,10 @@ impl Default for EquivOptions {
             sim_words: 16,
             seed: 0x5EED_F00D,
             sweep: true,
-            enumerate_up_to: 16,
+            enumerate_up_to: 24,
             window_gates: 200,
+            spec: None,
+            algebra: AlgebraOptions::default(),
         }
     }
 }
@@ -237,6 +255,26 @@ pub struct EquivStats {
     pub window_seconds: f64,
     /// Seconds proving the outputs.
     pub output_seconds: f64,
+    /// The algebraic proofs of the two sides, when a specification was given.
+    pub spec: Option<SpecStats>,
+    /// The command-line option of the limit that left the verdict
+    /// undecided (`--conflict-limit` or `--term-limit`), if one did.
+    pub stopped_by: Option<String>,
+}
+
+/// How each side fared against the word-level specification.
+#[derive(Clone, Debug, Default, PartialEq, serde::Serialize)]
+pub struct SpecStats {
+    /// The specification (`mul`, `add` or `mac`).
+    pub spec: String,
+    /// `proven`, `refuted` or `undecided` for the first netlist.
+    pub a: String,
+    /// The same for the second netlist.
+    pub b: String,
+    /// Rewriting counters of the first netlist.
+    pub a_algebra: AlgebraStats,
+    /// Rewriting counters of the second netlist.
+    pub b_algebra: AlgebraStats,
 }
 
 /// A verdict with the statistics of how it was reached.
@@ -268,6 +306,12 @@ pub fn check_with_stats(
     let started = Instant::now();
     let ports = ports::pair_ports(a, b, &opts.ports)?;
     let miter = Miter::build(a, b, &ports);
+    if let Some(spec) = opts.spec {
+        stats.miter_seconds = started.elapsed().as_secs_f64();
+        if let Some(report) = check_by_spec(a, b, &ports, &miter, spec, opts, &mut stats)? {
+            return Ok(report);
+        }
+    }
     let outputs_checked = miter.pairs.len();
     stats.miter_nodes = miter.network.num_nodes();
     stats.outputs_by_hashing = miter.pairs.iter().filter(|p| p.a == p.b).count();
@@ -362,6 +406,9 @@ pub fn check_with_stats(
     stats.oracle = oracle.stats;
     stats.window = window.stats;
     stats.window_seconds = window.seconds;
+    if verdict.is_none() && !undecided.is_empty() {
+        stats.stopped_by = Some("--conflict-limit".into());
+    }
     let verdict = verdict.unwrap_or(if undecided.is_empty() {
         Verdict::Equivalent { outputs_checked }
     } else {
@@ -371,6 +418,91 @@ pub fn check_with_stats(
         }
     });
     Ok(EquivReport { verdict, stats })
+}
+
+fn outcome_name(outcome: &algebra::SpecOutcome) -> &'static str {
+    match outcome {
+        algebra::SpecOutcome::Proven => "proven",
+        algebra::SpecOutcome::Refuted(_) => "refuted",
+        algebra::SpecOutcome::Undecided { .. } => "undecided",
+    }
+}
+
+/// The specification route: proves each side against `spec` by rewriting.
+/// Returns `None` when both sides are refuted but no pattern of theirs
+/// separates them (both wrong alike), leaving the question to sweeping.
+fn check_by_spec(
+    a: &Network,
+    b: &Network,
+    ports: &ports::PortPairs,
+    miter: &Miter,
+    spec: ArithSpec,
+    opts: &EquivOptions,
+    stats: &mut EquivStats,
+) -> Result<Option<EquivReport>, EquivError> {
+    use algebra::SpecOutcome;
+    let by_name = opts.ports != PortMatching::ByOrder;
+    let outputs_checked = miter.pairs.len();
+    let started = Instant::now();
+    let mut sides = Vec::new();
+    for (net, order) in [(a, &miter.a_inputs), (b, &miter.b_inputs)] {
+        let words = algebra::arith_words(net, spec, by_name).map_err(EquivError::BadPortMap)?;
+        let (outcome, algebra_stats) =
+            algebra::prove_against_spec(net, spec, &words, &opts.algebra).map_err(|e| match e {
+                algebra::AlgebraError::Words(m) => EquivError::BadPortMap(m),
+                algebra::AlgebraError::Internal(m) => EquivError::Internal(m),
+            })?;
+        sides.push((outcome, algebra_stats, order));
+    }
+    stats.output_seconds = started.elapsed().as_secs_f64();
+    stats.spec = Some(SpecStats {
+        spec: spec.to_string(),
+        a: outcome_name(&sides[0].0).into(),
+        b: outcome_name(&sides[1].0).into(),
+        a_algebra: sides[0].1.clone(),
+        b_algebra: sides[1].1.clone(),
+    });
+    // A refuted side: its pattern, moved to miter input order, separates
+    // the two networks unless the other side is wrong the same way there.
+    let mut verdict = None;
+    for (outcome, _, order) in &sides {
+        if let (SpecOutcome::Refuted(pattern), None) = (outcome, &verdict) {
+            let mut on_miter = vec![false; miter.input_names.len()];
+            for (k, &i) in order.iter().enumerate() {
+                on_miter[i] = pattern[k];
+            }
+            if let Ok(counterexample) = replay::replay(a, b, ports, miter, &on_miter) {
+                verdict = Some(Verdict::Different {
+                    counterexample,
+                    outputs_checked,
+                });
+            }
+        }
+    }
+    let undecided = |o: &SpecOutcome| matches!(o, SpecOutcome::Undecided { .. });
+    let verdict = match verdict {
+        Some(v) => v,
+        None if sides.iter().all(|s| s.0 == SpecOutcome::Proven) => {
+            Verdict::Equivalent { outputs_checked }
+        }
+        // One side proven, the other too large to rewrite (a mapped
+        // netlist whose cells split the full adders): sweeping the two
+        // against each other finishes the proof through the proven side.
+        None if sides.iter().any(|s| s.0 == SpecOutcome::Proven) => return Ok(None),
+        None if sides.iter().any(|s| undecided(&s.0)) => {
+            stats.stopped_by = Some("--term-limit".into());
+            Verdict::Undecided {
+                outputs: miter.pairs.iter().map(|p| p.name.clone()).collect(),
+                outputs_checked,
+            }
+        }
+        // Both wrong alike on their own patterns: let sweeping decide.
+        None => return Ok(None),
+    };
+    Ok(Some(EquivReport {
+        verdict,
+        stats: stats.clone(),
+    }))
 }
 
 /// A random pattern on which some output pair already differs, if any.
