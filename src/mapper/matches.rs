@@ -21,16 +21,16 @@ pub const NO_SLOT: u32 = u32::MAX;
 /// Implementations per cut function, both phases side by side.
 #[derive(Clone, Debug)]
 pub struct MatchTable {
-    index: FxHashMap<u64, u32>,
-    slots: Vec<Vec<u32>>,
+    pub(super) index: FxHashMap<u64, u32>,
+    pub(super) slots: Vec<Vec<u32>>,
     /// Every implementation the table refers to.
     pub implementations: Vec<Implementation>,
     /// Load assumed at a cell output when ranking by delay (mean input load).
     pub typical_load: f32,
-    inverter: Option<u32>,
-    buffer: Option<u32>,
+    pub(super) inverter: Option<u32>,
+    pub(super) buffer: Option<u32>,
     /// Area of the library's cheapest inverter cell (0 without one).
-    inverter_area: f64,
+    pub(super) inverter_area: f64,
 }
 
 /// True when the variables `truth` depends on are exactly `0..m` for some m.

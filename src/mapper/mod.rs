@@ -28,6 +28,7 @@ pub mod matches;
 pub mod optimum;
 pub mod small_truth;
 pub mod supergate;
+pub mod table_cache;
 pub mod witness;
 
 pub use matches::MatchTable;
@@ -145,7 +146,8 @@ pub fn map(net: &Network, lib: &Library, opts: &MapOptions) -> Result<MappedNetl
     map_detailed(net, lib, opts).map(|o| o.netlist)
 }
 
-/// The match table of `lib`, built once per process and library and shared.
+/// The match table of `lib`, built once per process and library and shared
+/// (and kept on disk between processes, see [`table_cache`]).
 pub fn match_table(lib: &Library) -> Arc<MatchTable> {
     type Cache = Mutex<Vec<(Library, Arc<MatchTable>)>>;
     static CACHE: OnceLock<Cache> = OnceLock::new();
@@ -156,7 +158,7 @@ pub fn match_table(lib: &Library) -> Arc<MatchTable> {
             return t.clone();
         }
     }
-    let table = Arc::new(MatchTable::build(lib));
+    let table = Arc::new(table_cache::load_or_build(lib));
     let mut guard = cache.lock().unwrap_or_else(|e| e.into_inner());
     if guard.len() >= 8 {
         guard.remove(0);
