@@ -22,9 +22,9 @@ use super::miter::{ComparedPair, Miter};
 use super::progress::Progress;
 use crate::network::{exhaustive_word, Lit, Network, NodeKind};
 
-/// Largest `passes * cone nodes` product spent on enumeration (about ten
+/// Largest `passes * cone nodes` product spent on enumeration (a few
 /// seconds of simulation on two cores).
-const MAX_WORK: u64 = 1 << 34;
+const MAX_WORK: u64 = 1 << 32;
 
 /// Widest miter ever enumerated, whatever the options say.
 pub(crate) const MAX_INPUTS: usize = 30;
