@@ -253,7 +253,7 @@ fn exact_cuts_option_reaches_the_enumerated_minimum_for_xor() {
         assert_eq!(v["verified"], "proven");
         v["area"].as_f64().unwrap()
     };
-    assert_eq!(area(&["--optimum"]), 14.0);
+    assert_eq!(area(&["--exact-cuts"]), 14.0);
     // Without the option the cut-based mapping does not find it.
     assert!(area(&[]) > 14.0);
 }

@@ -1,6 +1,6 @@
 //! Bad device data: every case ends `ribbonmap characterize` with exit code
 //! 2 and one `error: FILE:LINE:COL: ...` line naming the file and line at
-//! fault (DESIGN.md exit-code contract). The kits and tables are written by
+//! fault (docs/exit-codes.md). The kits and tables are written by
 //! each test into a temporary folder.
 
 use assert_cmd::Command;

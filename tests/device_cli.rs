@@ -45,7 +45,7 @@ fn characterize_map_and_spice_on_the_demo_kit() {
     assert!(!data.cell("xor3w").unwrap().restoring);
     assert!(data.cell("maj3").unwrap().restoring);
     // The truth tables read at the corners are the functions the kit
-    // declares (majority 0xE8, three-input XOR 0x96: DESIGN.md convention).
+    // declares (majority 0xE8, three-input XOR 0x96: truth-table convention, docs/library-format.md).
     assert_eq!(lib.cell("maj3").unwrap().truth, 0xE8);
     assert_eq!(lib.cell("xor3w").unwrap().truth, 0x96);
     let html = std::fs::read_to_string(d.join("report.html")).unwrap();
