@@ -541,7 +541,9 @@ impl<'a, 'o> Reader<'a, 'o> {
                 toks[0].1 + pos as u32,
                 format!(
                     "unexpected '{}' in a cover row (expected 0, 1 or -)",
-                    &plane[pos..pos + 1]
+                    // A whole character, not a byte: the row may hold
+                    // multi-byte UTF-8 text.
+                    plane[pos..].chars().next().unwrap_or('?')
                 ),
             ));
         }

@@ -136,3 +136,12 @@ fn garbage_is_an_error_not_a_panic() {
         assert!(read("\u{1}\u{2}((( .names", f).is_err());
     }
 }
+
+#[test]
+fn multi_byte_character_in_a_cover_row_is_an_error_not_a_panic() {
+    // Found by the fuzz harness (examples/fuzz_inputs.rs): the row check
+    // counted bytes, then sliced one byte out of a two-byte 'é'.
+    let text = ".model m\n.inputs a b\n.outputs y\n.names a b y\né 1\n.end\n";
+    let err = read(text, NetlistFormat::Blif).unwrap_err().to_string();
+    assert!(err.contains("'é'") && err.contains("5:1"), "{err}");
+}
