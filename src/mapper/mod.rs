@@ -9,9 +9,14 @@
 //!    library, a table from cut functions to cells and small cell networks
 //!    that realise them, both output phases side by side;
 //! 3. [`cuts`]: priority cuts, with truth tables computed from the fanins';
-//! 4. [`cover`]: the delay-oriented cover, then area recovery by area flow
-//!    and exact area within the required times, then extraction of the
-//!    netlist.
+//! 4. [`cover`]: covers of the subject, each a delay-oriented or area-flow
+//!    pass, then area recovery by area flow and exact area within the
+//!    required times, then extraction of the netlist (cells merged where
+//!    two would compute the same function of the same nets);
+//! 5. [`runs`]: the covers made (least area; least delay; area recovery
+//!    within several delay bounds), plus those of the largest built-in
+//!    library this one contains, measured by static timing; the goal picks
+//!    the run with the least area, delay, or area × delay.
 //!
 //! With [`MapOptions::optimum`], [`optimum`] adds exact minimum networks of
 //! the cut functions of up to four leaves (from the exact-synthesis
@@ -26,12 +31,14 @@ pub mod cuts;
 pub mod implementation;
 pub mod matches;
 pub mod optimum;
+pub mod runs;
 pub mod small_truth;
 pub mod supergate;
 pub mod table_cache;
 pub mod witness;
 
 pub use matches::MatchTable;
+pub use runs::Run;
 
 use crate::library::Library;
 use crate::netlist::MappedNetlist;
@@ -48,11 +55,13 @@ use witness::{CoverWitness, CoveredOrigin};
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default, serde::Serialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Goal {
-    /// Least area; delay is ignored.
+    /// Least area, then least delay, over the runs of [`runs`].
     Area,
-    /// Least delay, then least area at that delay.
+    /// Least delay, then least area, over the runs of [`runs`].
     Delay,
-    /// Least area within `delay_slack` of the least delay.
+    /// Least area × delay, then least area, over the runs of [`runs`]:
+    /// area recovery within several delay bounds (the least delay, 10 %,
+    /// 25 % and 50 % over it, and `delay_slack` over it) and the area run.
     #[default]
     Balanced,
 }
@@ -77,7 +86,7 @@ pub struct MapOptions {
     pub cut_size: usize,
     /// Priority cuts kept per node, besides the trivial cut (1 to 64).
     pub cuts_per_node: usize,
-    /// For [`Goal::Balanced`]: allowed delay over the best, as a fraction.
+    /// One more delay bound to explore, as a fraction over the least delay.
     pub delay_slack: f64,
     /// Exact-area passes after the area-flow pass.
     pub area_passes: usize,
@@ -123,8 +132,12 @@ pub enum MapError {
 /// A mapped netlist with the time spent in each phase.
 #[derive(Clone, Debug)]
 pub struct MapOutcome {
-    /// The netlist.
+    /// The netlist (the chosen run's).
     pub netlist: MappedNetlist,
+    /// Name of the run the goal chose (see [`runs`]).
+    pub run: String,
+    /// Every run considered, in the order made.
+    pub runs: Vec<Run>,
     /// Seconds per phase: `match` (table build, zero when cached),
     /// `restructure` (zero when off), `balance`, `cuts` (cut enumeration with the delay cover), `cover`
     /// (area recovery and extraction).
@@ -192,6 +205,29 @@ fn tree_widths(lib: &Library, limit: usize) -> (usize, usize) {
     (and_w, xor_w)
 }
 
+/// Delay bounds explored after the delay pass, as fractions over the least
+/// delay (0 is the delay goal's own run).
+const DELAY_BOUNDS: [f64; 4] = [0.0, 0.1, 0.25, 0.5];
+
+/// Area recovery of a delay-mapped `cover` within `target` at the outputs:
+/// area flow, then `area_passes` exact-area passes, then extraction (with
+/// the witness of every net, see [`witness`]).
+fn recover(mut cover: Cover, target: f32, area_passes: usize) -> (MappedNetlist, Vec<u32>) {
+    cover.mark();
+    cover.set_required(target);
+    cover.update_fanout_estimate();
+    if cover.reselect(Rank::AreaFlow).is_err() {
+        unreachable!("a node mapped once always has a match");
+    }
+    for _ in 0..area_passes {
+        cover.mark();
+        cover.set_required(target);
+        cover.exact_area_pass();
+    }
+    cover.mark();
+    cover.into_netlist_with_witness()
+}
+
 /// Maps `net` onto `lib`, returning phase timings and sizes too.
 pub fn map_detailed(
     net: &Network,
@@ -257,16 +293,11 @@ pub fn map_detailed(
     let subject = balanced.as_ref().map_or(net, |(b, _)| b);
     seconds.insert("balance".to_string(), t.elapsed().as_secs_f64());
 
-    let first = if opts.goal == Goal::Area {
-        Rank::AreaFlow
-    } else {
-        Rank::Delay
-    };
     let augmented;
     let table: &MatchTable = if opts.optimum {
         let t = Instant::now();
         let mut probe = Cover::new(subject, lib, &table, opts.cut_size)?;
-        let functions = probe.enumerate_and_collect(opts.cuts_per_node, first)?;
+        let functions = probe.enumerate_and_collect(opts.cuts_per_node, Rank::Delay)?;
         drop(probe);
         augmented = optimum::augmented_table(&table, lib, functions).0;
         seconds.insert("exact_cuts".to_string(), t.elapsed().as_secs_f64());
@@ -275,45 +306,85 @@ pub fn map_detailed(
         &table
     };
 
+    // Run 1: area flow from the start, no delay bound.
     let t = Instant::now();
+    let mut area_cover = Cover::new(subject, lib, table, opts.cut_size)?;
+    area_cover.enumerate_and_map(opts.cuts_per_node, Rank::AreaFlow)?;
     let mut cover = Cover::new(subject, lib, table, opts.cut_size)?;
-    cover.enumerate_and_map(opts.cuts_per_node, first)?;
+    cover.enumerate_and_map(opts.cuts_per_node, Rank::Delay)?;
     seconds.insert("cuts".to_string(), t.elapsed().as_secs_f64());
 
     let t = Instant::now();
+    // The runs of this library, measured once the covered network's origin
+    // (which owns the balanced network the covers borrow) is known.
+    let mut own: Vec<(String, (MappedNetlist, Vec<u32>))> = vec![(
+        "area".to_string(),
+        recover(area_cover, f32::INFINITY, opts.area_passes),
+    )];
+    // Runs 2 and on: one delay pass, then area recovery within each bound.
     let best_delay = cover.mark();
-    let target = match opts.goal {
-        Goal::Area => f32::INFINITY,
-        Goal::Delay => best_delay,
-        Goal::Balanced => best_delay * (1.0 + opts.delay_slack as f32),
-    };
-    cover.set_required(target);
-    cover.update_fanout_estimate();
-    cover.reselect(Rank::AreaFlow)?;
-    for _ in 0..opts.area_passes {
-        cover.mark();
-        cover.set_required(target);
-        cover.exact_area_pass();
-    }
-    cover.mark();
     let cover_bytes = cover.memory_bytes();
     let cuts = cover.cuts.len();
     let covered_nodes = subject.num_nodes();
-    let (netlist, net_lits) = cover.into_netlist_with_witness();
+    let mut slacks = DELAY_BOUNDS.to_vec();
+    slacks.push(opts.delay_slack);
+    slacks.sort_by(f64::total_cmp);
+    slacks.dedup();
+    for slack in slacks {
+        let name = if slack == 0.0 {
+            "delay".to_string()
+        } else {
+            format!("delay+{:.0}%", slack * 100.0)
+        };
+        let target = best_delay * (1.0 + slack as f32);
+        own.push((name, recover(cover.clone(), target, opts.area_passes)));
+    }
+    drop(cover);
     seconds.insert("cover".to_string(), t.elapsed().as_secs_f64());
-    let origin = match (optimized, balanced) {
+
+    // The runs of the largest built-in library this one contains (each
+    // with its own witness: the sub-library covered its own network).
+    let mut sub_runs = Vec::new();
+    if let Some(sub) = runs::largest_builtin_subset(lib) {
+        let t = Instant::now();
+        let sub_outcome = map_detailed(net, &sub, opts)?;
+        for r in sub_outcome.runs {
+            let name = format!("{}:{}", sub.name, r.name);
+            let netlist = runs::translate(r.netlist, &sub, lib);
+            sub_runs.push(Run::measure(name, netlist, r.witness, lib));
+        }
+        seconds.insert("subset".to_string(), t.elapsed().as_secs_f64());
+    }
+    let origin = Arc::new(match (optimized, balanced) {
         (None, None) => CoveredOrigin::Input,
         (None, Some((covered, map))) => CoveredOrigin::Balanced { covered, map },
         (Some(covered), None) | (Some(_), Some((covered, _))) => {
             CoveredOrigin::Restructured { covered }
         }
-    };
+    });
+    let mut runs: Vec<Run> = own
+        .into_iter()
+        .map(|(name, (netlist, net_lits))| {
+            let witness = CoverWitness {
+                origin: origin.clone(),
+                net_lits,
+            };
+            Run::measure(name, netlist, witness, lib)
+        })
+        .collect();
+    runs.extend(sub_runs);
+    let won = runs::pick(&runs, opts.goal);
+    let netlist = runs[won].netlist.clone();
+    let witness = runs[won].witness.clone();
+    let run = runs[won].name.clone();
     Ok(MapOutcome {
         netlist,
+        run,
+        runs,
         seconds,
         covered_nodes,
         cuts,
         cover_bytes,
-        witness: CoverWitness { origin, net_lits },
+        witness,
     })
 }

@@ -40,8 +40,9 @@ pub enum CoveredOrigin {
 /// The mapper's record of what every net of its netlist implements.
 #[derive(Clone, Debug)]
 pub struct CoverWitness {
-    /// Where the covered network came from.
-    pub origin: CoveredOrigin,
+    /// Where the covered network came from (shared by every run of one
+    /// mapping call, see [`super::runs`]).
+    pub origin: std::sync::Arc<CoveredOrigin>,
     /// Per net of the mapped netlist: the raw [`Lit`] of the covered network
     /// it carries, or [`NO_LIT`] for a net inside a multi-cell match.
     pub net_lits: Vec<u32>,
@@ -51,7 +52,7 @@ impl CoverWitness {
     /// The network the mapper covered: the balanced or restructured one, or
     /// `input` itself.
     pub fn covered<'a>(&'a self, input: &'a Network) -> &'a Network {
-        match &self.origin {
+        match self.origin.as_ref() {
             CoveredOrigin::Input => input,
             CoveredOrigin::Balanced { covered, .. } | CoveredOrigin::Restructured { covered } => {
                 covered

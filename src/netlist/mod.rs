@@ -29,7 +29,7 @@ mod timing;
 mod verify;
 mod verilog;
 
-pub use report::Report;
+pub use report::{Report, Stage};
 pub use timing::{analyze_timing, PathStep, TimingReport};
 pub use verify::{verify, Verified, VerifyError, VerifyMode};
 

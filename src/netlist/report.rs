@@ -38,6 +38,52 @@ pub struct Report {
     pub units: IndexMap<String, String>,
     /// Nets on the critical path, start first.
     pub critical_path: Vec<String>,
+    /// The critical path stage by stage, start first (text report only).
+    #[serde(skip)]
+    pub critical_stages: Vec<Stage>,
+}
+
+/// One stage of the critical path: the cell driving a net, the net's load,
+/// the stage's delay and the arrival at the net.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Stage {
+    /// Cell name, or `None` for the start point.
+    pub cell: Option<String>,
+    /// Net name.
+    pub net: String,
+    /// Load on the net, in input-pin load units of the library.
+    pub load: f64,
+    /// Arrival at the net minus arrival at the previous stage, in the
+    /// library's delay unit.
+    pub stage_delay: f64,
+    /// Arrival at the net, in the library's delay unit.
+    pub arrival: f64,
+}
+
+/// The stages of `timing`'s critical path in `nl`.
+fn stages(nl: &MappedNetlist, timing: &TimingReport) -> Vec<Stage> {
+    let mut previous = 0.0;
+    timing
+        .critical_path
+        .iter()
+        .map(|step| {
+            let load = nl
+                .nets
+                .iter()
+                .position(|n| n.name == step.net)
+                .and_then(|i| timing.load.get(i).copied())
+                .unwrap_or(0.0);
+            let stage = Stage {
+                cell: step.cell.clone(),
+                net: step.net.clone(),
+                load,
+                stage_delay: step.arrival - previous,
+                arrival: step.arrival,
+            };
+            previous = step.arrival;
+            stage
+        })
+        .collect()
 }
 
 impl Report {
@@ -75,6 +121,7 @@ impl Report {
                     None => s.net.clone(),
                 })
                 .collect(),
+            critical_stages: stages(nl, timing),
         }
     }
 
@@ -103,10 +150,27 @@ impl Report {
         for (phase, t) in &self.seconds {
             let _ = writeln!(s, "  {phase:<8}  {t:>9.4}");
         }
-        if !self.critical_path.is_empty() {
+        if !self.critical_stages.is_empty() {
             let _ = writeln!(s, "critical path, start first");
-            for step in &self.critical_path {
-                let _ = writeln!(s, "  {step}");
+            let _ = writeln!(
+                s,
+                "  {:<10} {:<24} {:>16} {:>12} {:>12}",
+                "cell",
+                "net",
+                "load (unit pins)",
+                format!("stage {delay_unit}"),
+                format!("arrival {delay_unit}")
+            );
+            for st in &self.critical_stages {
+                let _ = writeln!(
+                    s,
+                    "  {:<10} {:<24} {:>16.3} {:>12.3} {:>12.3}",
+                    st.cell.as_deref().unwrap_or("(input)"),
+                    st.net,
+                    st.load,
+                    st.stage_delay,
+                    st.arrival
+                );
             }
         }
         s

@@ -55,7 +55,7 @@ pub fn check_witness(
 ) -> Result<(), Refused> {
     let covered = witness.covered(input);
     cells::check_cells(mapped, lib, covered, witness)?;
-    match &witness.origin {
+    match witness.origin.as_ref() {
         CoveredOrigin::Input => Ok(()),
         CoveredOrigin::Balanced { covered, map } => covered::check_balanced(input, covered, map),
         CoveredOrigin::Restructured { .. } => Err(Refused(
@@ -79,7 +79,7 @@ pub fn prove(
         let verified = verify(input, &mapped.to_network(lib), VerifyMode::Full)?;
         return Ok((verified, ProofRoute::General));
     }
-    let balanced = match &witness.origin {
+    let balanced = match witness.origin.as_ref() {
         CoveredOrigin::Input => return Ok((Verified::Proven, ProofRoute::Witness)),
         CoveredOrigin::Balanced { covered, map } => covered::check_balanced(input, covered, map),
         CoveredOrigin::Restructured { .. } => Err(Refused(String::new())),

@@ -2,6 +2,7 @@
 //! for generated nets and instances that avoid the ports' and storage
 //! elements' names.
 
+use super::dedup::CellKeys;
 use super::{Cover, FREE, INVERT, NONE};
 use crate::mapper::implementation::Source;
 use crate::netlist::{Driver, MappedNetlist, NetId, Port, StorageInstance};
@@ -145,6 +146,7 @@ impl Cover<'_> {
             constants[c as usize]
         };
         let mut local: Vec<NetId> = Vec::new();
+        let mut keys = CellKeys::default();
         for node in 0..net.num_nodes() {
             if net.kind(NodeId(node as u32)) == NodeKind::Const {
                 for phase in 0..2 {
@@ -176,6 +178,7 @@ impl Cover<'_> {
                             &mut local,
                             &mut constant,
                             &names,
+                            &mut keys,
                         );
                     }
                     c => {
@@ -193,6 +196,7 @@ impl Cover<'_> {
                             &mut local,
                             &mut constant,
                             &names,
+                            &mut keys,
                         );
                     }
                 }
@@ -241,7 +245,10 @@ impl Cover<'_> {
     /// Instantiates implementation `imp`; `leaf_nets[2 * var + complemented]`
     /// gives the net of each leaf phase (the inverter and the buffer read
     /// only leaf 0 uncomplemented, so `[net]` suffices). Returns the output
-    /// net.
+    /// net. A cell equal to one made before (same function of the same
+    /// nets, see `dedup`) is not made again: its net is reused.
+    // The extraction state is passed piece by piece, as each caller owns it.
+    #[allow(clippy::too_many_arguments)]
     fn instantiate(
         &self,
         out: &mut MappedNetlist,
@@ -250,6 +257,7 @@ impl Cover<'_> {
         local: &mut Vec<NetId>,
         constant: &mut impl FnMut(&mut MappedNetlist, bool) -> NetId,
         names: &FreshNames,
+        keys: &mut CellKeys,
     ) -> NetId {
         let m = self.table.implementation(imp);
         local.clear();
@@ -265,8 +273,18 @@ impl Cover<'_> {
                     Source::Constant(c) => constant(out, c),
                 })
                 .collect();
+            if let Some(n) = keys.find(self.lib, gate.cell, &inputs) {
+                local.push(n);
+                continue;
+            }
             let name = names.fresh("n", out.nets.len());
             let n = out.add_instance(gate.cell, inputs, name);
+            keys.insert(
+                self.lib,
+                gate.cell,
+                &out.instances[out.instances.len() - 1].inputs,
+                n,
+            );
             if names.clash_possible {
                 let idx = out.instances.len() - 1;
                 out.instances[idx].name = names.fresh("g", idx);

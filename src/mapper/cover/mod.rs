@@ -37,9 +37,11 @@
 //! The passes live in one file each around the state type [`Cover`]:
 //! `select` (the per-node choice shared by the first two passes), `delay`,
 //! `area_flow`, `exact_area`, `timing` (reference counts and required
-//! times) and `extract`.
+//! times), `extract` and `dedup` (no two cells of the netlist compute the
+//! same function of the same nets).
 
 mod area_flow;
+mod dedup;
 mod delay;
 mod exact_area;
 mod extract;
@@ -66,7 +68,9 @@ pub enum Rank {
     AreaFlow,
 }
 
-/// The covering state of one mapping run.
+/// The covering state of one mapping run (cloned to try several area
+/// recoveries after one delay pass).
+#[derive(Clone)]
 pub struct Cover<'a> {
     net: &'a Network,
     lib: &'a Library,
