@@ -262,4 +262,166 @@ fn weak_xor_chain_degrades_levels_while_the_restoring_one_holds() {
     // lose, so its worst margin must fall below 20 mV.
     assert!(bad_worst < 0.020, "xor3w chain worst margin {bad_worst} V");
     assert!(bad_worst < good_worst / 2.0);
+    // And it drifts across the switching threshold: the parity comes out
+    // wrong on some patterns (exhaustive truth is the XOR of the inputs).
+    assert!(bad.logic_failures > 0);
+}
+
+/// An n-bit ripple-carry adder as BLIF: inputs a0.., b0.., cin; outputs
+/// s0.. and the carry out.
+fn ripple_adder_blif(bits: usize) -> String {
+    let mut t = format!(".model add{bits}\n.inputs");
+    for k in 0..bits {
+        t += &format!(" a{k} b{k}");
+    }
+    t += " c0\n.outputs";
+    for k in 0..bits {
+        t += &format!(" s{k}");
+    }
+    t += &format!(" c{bits}\n");
+    for k in 0..bits {
+        t += &format!(".names a{k} b{k} c{k} s{k}\n100 1\n010 1\n001 1\n111 1\n");
+        t += &format!(".names a{k} b{k} c{k} c{}\n11- 1\n1-1 1\n-11 1\n", k + 1);
+    }
+    t + ".end\n"
+}
+
+#[test]
+fn ripple_adder_voltages_match_ngspice_dc_ngspice() {
+    if !ngspice_present() {
+        return;
+    }
+    let s = setup("demo.json");
+    let net = read_netlist_str(
+        &ripple_adder_blif(4),
+        "add4.blif",
+        NetlistFormat::Blif,
+        &ReadOptions::default(),
+    )
+    .unwrap();
+    let netlist = map(&net, &s.lib, &MapOptions::default()).unwrap();
+    let width = netlist.inputs.len();
+    assert_eq!(width, 9);
+    // 32 patterns from a fixed linear congruential sequence (Knuth's MMIX
+    // constants), so the run is repeatable.
+    let mut state: u64 = 12345;
+    let mut worst_dv: f64 = 0.0;
+    let mut off_grid = 0;
+    for p in 0..32 {
+        state = state
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        let bits: Vec<bool> = (0..width).map(|k| (state >> (33 + k)) & 1 == 1).collect();
+        let (volts, _) = net_voltages(&netlist, &s.levels, &bits).unwrap();
+        let stem = format!("add4_{p}");
+        let deck = write_deck(
+            &netlist,
+            &s.lib,
+            &s.models,
+            &Stimulus::Pattern(bits),
+            &stem,
+            &[],
+        )
+        .unwrap();
+        let path = s.dir.join(format!("{stem}.cir"));
+        deck.save(&path).unwrap();
+        let out = Command::new("ngspice")
+            .arg("-b")
+            .arg(&path)
+            .current_dir(&s.dir)
+            .output()
+            .expect("ngspice runs");
+        let output = String::from_utf8_lossy(&out.stdout).to_string()
+            + &String::from_utf8_lossy(&out.stderr);
+        for (id, net) in netlist.nets.iter().enumerate() {
+            if matches!(net.driver, Driver::Constant(_)) {
+                continue;
+            }
+            let spice = op_value(&output, &node(id as u32));
+            let dv = (spice - volts[id]).abs();
+            assert!(
+                dv < 1e-4,
+                "pattern {p}, net {}: ngspice {spice} V, levels {} V",
+                net.name,
+                volts[id]
+            );
+            worst_dv = worst_dv.max(dv);
+            // A cell output that feeds another cell sits between grid
+            // points of the reader's tables: interpolation is exercised.
+            if matches!(net.driver, Driver::Cell(_)) && volts[id] > 1e-6 && volts[id] < 0.2 - 1e-6 {
+                off_grid += 1;
+            }
+        }
+    }
+    assert!(off_grid > 0);
+    println!(
+        "4-bit ripple adder on demo kit ({} cells): 32 patterns, max |dV| vs ngspice = {worst_dv:.3e} V",
+        netlist.instances.len()
+    );
+}
+
+fn ribbonmap_cli(dir: &Path) -> assert_cmd::Command {
+    let mut c = assert_cmd::Command::cargo_bin("ribbonmap").unwrap();
+    c.env("RIBBONMAP_CACHE_DIR", dir).current_dir(dir);
+    c
+}
+
+#[test]
+fn levels_command_reports_units_and_exit_codes() {
+    let dir = tempfile::tempdir().unwrap();
+    let d = dir.path();
+    let kit = Path::new(env!("CARGO_MANIFEST_DIR")).join("libraries/devices/demo/demo.json");
+    ribbonmap_cli(d)
+        .arg("characterize")
+        .arg(&kit)
+        .args(["-o", "lib.json"])
+        .assert()
+        .success();
+    std::fs::write(d.join("fa.blif"), FULL_ADDER).unwrap();
+    let out = ribbonmap_cli(d)
+        .args(["levels", "fa.blif", "--lib", "lib.json"])
+        .assert()
+        .code(0)
+        .get_output()
+        .stdout
+        .clone();
+    let text = String::from_utf8(out).unwrap();
+    assert!(text.contains(" mV") && text.contains(" nW") && text.contains("8 (every pattern)"));
+    // The full adder's worst margin (64 mV on the demo kit) is below 1 V.
+    ribbonmap_cli(d)
+        .args([
+            "levels",
+            "fa.blif",
+            "--lib",
+            "lib.json",
+            "--min-margin",
+            "1000",
+        ])
+        .assert()
+        .code(1);
+    let out = ribbonmap_cli(d)
+        .args(["levels", "fa.blif", "--lib", "lib.json", "--format", "json"])
+        .assert()
+        .code(0)
+        .get_output()
+        .stdout
+        .clone();
+    let v: serde_json::Value = serde_json::from_slice(&out).unwrap();
+    assert_eq!(v["patterns"], 8);
+    assert_eq!(v["holds"], true);
+    assert_eq!(v["logic_failures"], 0);
+    assert!(v["nets"][0]["worst_margin_v"].as_f64().unwrap() > 0.0);
+    // `map --levels` adds the same analysis to the map report.
+    ribbonmap_cli(d)
+        .args(["map", "fa.blif", "--lib", "lib.json", "--levels"])
+        .assert()
+        .code(0)
+        .stdout(predicates::str::contains("levels    worst margin"))
+        .stdout(predicates::str::contains("0 logic failures"));
+    // A library without electrical data is bad input.
+    ribbonmap_cli(d)
+        .args(["levels", "fa.blif", "--lib", "ribbon3"])
+        .assert()
+        .code(2)
+        .stderr(predicates::str::starts_with("error: "));
 }

@@ -7,7 +7,9 @@ use super::spice::load_library_models;
 use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK};
 use crate::cli::netlist_args::NetlistArgs;
 use crate::device::levels::{analyze_levels, LevelModel, LevelOptions, LevelReport};
+use crate::library::Library;
 use crate::mapper::{map, MapOptions};
+use crate::netlist::MappedNetlist;
 use std::fmt::Write;
 use std::path::PathBuf;
 
@@ -52,6 +54,19 @@ pub struct Args {
     /// How to read the netlist.
     #[command(flatten)]
     pub reading: NetlistArgs,
+}
+
+/// Level analysis of `netlist`, already mapped on the characterised
+/// library `lib` (loaded from `lib_spec`); shared with `map --levels`.
+pub fn analyze_mapped(
+    netlist: &MappedNetlist,
+    lib: &Library,
+    lib_spec: &str,
+    options: &LevelOptions,
+) -> Result<LevelReport, CliError> {
+    let (models, data) = load_library_models(lib, lib_spec)?;
+    let model = LevelModel::new(lib, &models, &data);
+    analyze_levels(netlist, lib, &model, options).map_err(CliError::Input)
 }
 
 /// Runs the command.
@@ -102,6 +117,21 @@ pub fn run(args: Args) -> CmdResult {
         ),
     }
     Ok(if holds { EXIT_OK } else { EXIT_NEGATIVE })
+}
+
+/// One line summing up a level analysis, for `map --levels`.
+pub fn summary_line(report: &LevelReport) -> String {
+    match report.nets.first() {
+        Some(w) => format!(
+            "levels    worst margin {:.3} mV on net {}, {} logic failures (net-patterns) over {} patterns, static {:.3} nW\n",
+            w.worst_margin_v * 1e3,
+            w.net,
+            report.logic_failures,
+            report.patterns,
+            report.average_static_power_nw
+        ),
+        None => "levels    no net is read\n".to_string(),
+    }
 }
 
 /// The text report; every figure names its unit.
