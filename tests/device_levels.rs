@@ -268,6 +268,13 @@ fn weak_xor_chain_degrades_levels_while_the_restoring_one_holds() {
     // And it drifts across the switching threshold: the parity comes out
     // wrong on some patterns (exhaustive truth is the XOR of the inputs).
     assert!(bad.logic_failures > 0);
+    // The worst-pattern search ran within its budget, and the weakest net's
+    // path runs from a primary input through the chain to that net.
+    assert!(bad.search_evaluations > 0 && bad.search_evaluations <= 4096);
+    let path = &bad.nets[0].path;
+    assert!(path.len() >= 2, "{path:?}");
+    assert!(path[0].starts_with('x'), "{path:?}");
+    assert_eq!(path.last(), Some(&bad.nets[0].net));
 }
 
 /// An n-bit ripple-carry adder as BLIF: inputs a0.., b0.., cin; outputs

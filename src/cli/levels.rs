@@ -178,6 +178,16 @@ fn text_report(
             let _ = writeln!(t, "worst margin    none (no net is read)");
         }
     }
+    if let Some(w) = report.nets.first().filter(|w| !w.path.is_empty()) {
+        let _ = writeln!(t, "weakest path    {}", w.path.join(" > "));
+    }
+    if !report.exhaustive {
+        let _ = writeln!(
+            t,
+            "search          {} evaluations of single-input flips from the weakest nets' worst patterns",
+            report.search_evaluations
+        );
+    }
     let _ = writeln!(
         t,
         "logic failures  {} net-patterns on {} patterns",

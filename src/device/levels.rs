@@ -34,6 +34,10 @@ pub const MAX_EXHAUSTIVE_INPUTS: usize = 16;
 /// Most random patterns a run may ask for (bounds the run time).
 pub const MAX_PATTERNS: u64 = 1 << 24;
 
+/// Weakest nets whose worst pattern is searched for (after random
+/// patterns) and whose degradation path is reported.
+pub const SEARCHED_NETS: usize = 10;
+
 /// Width of a histogram bin of margins, volts (10 mV).
 pub const HISTOGRAM_BIN_V: f64 = 0.010;
 
@@ -153,8 +157,14 @@ pub struct NetLevel {
     pub vil_v: f64,
     /// Input high threshold the net is held to, volts.
     pub vih_v: f64,
-    /// Patterns on which the net's voltage reads as the wrong value.
+    /// Patterns on which the net's voltage reads as the wrong value (of
+    /// the exhaustive or random patterns; the search's are not counted).
     pub failures: u64,
+    /// For the weakest nets: the nets from a primary input to this one on
+    /// the worst pattern, stepping back each time through the cell input
+    /// with the lowest margin; where the margins fall is where the
+    /// degradation happens. Empty for the other nets.
+    pub path: Vec<String>,
 }
 
 /// A bin of the margin histogram: nets whose worst margin lies in
@@ -186,6 +196,9 @@ pub struct LevelReport {
     pub logic_failures: u64,
     /// Patterns on which at least one net reads as the wrong value.
     pub failing_patterns: u64,
+    /// Netlist evaluations the worst-pattern search made after random
+    /// patterns (0 when every pattern was analysed).
+    pub search_evaluations: u64,
     /// Mean static power over the patterns, nanowatts.
     pub average_static_power_nw: f64,
     /// Histogram of the nets' worst margins, 10 mV bins, ascending.
@@ -353,6 +366,18 @@ fn net_thresholds(netlist: &MappedNetlist, model: &LevelModel) -> Vec<Option<Thr
     out
 }
 
+impl Thresholds {
+    /// Margin (volts) of a net at `v` whose Boolean value is `value`, and
+    /// whether it reads as the wrong value.
+    fn margin(&self, v: f64, value: bool) -> (f64, bool) {
+        if value {
+            (v - self.vih_v, v <= self.vm_low_v)
+        } else {
+            (self.vil_v - v, v >= self.vm_high_v)
+        }
+    }
+}
+
 /// A small, fast generator of random patterns (SplitMix64; Steele, Lea and
 /// Flood, "Fast splittable pseudorandom number generators", 2014).
 struct SplitMix(u64);
@@ -422,11 +447,7 @@ pub fn analyze_levels(
         for id in 0..nets {
             let Some(t) = thresholds[id] else { continue };
             let v = volts[id];
-            let (margin, wrong) = if logic[id] {
-                (v - t.vih_v, v <= t.vm_low_v)
-            } else {
-                (t.vil_v - v, v >= t.vm_high_v)
-            };
+            let (margin, wrong) = t.margin(v, logic[id]);
             if wrong {
                 failures[id] += 1;
                 failed = true;
@@ -436,6 +457,27 @@ pub fn analyze_levels(
             }
         }
         failing_patterns += u64::from(failed);
+    }
+    let mut search = Search {
+        netlist,
+        library,
+        model,
+        volts,
+        logic,
+        evaluations: 0,
+    };
+    if !exhaustive {
+        // Hill climbing over single-input flips from the worst pattern of
+        // each of the weakest nets, within as many evaluations as the
+        // random phase took.
+        let mut order: Vec<usize> = (0..nets).filter(|&id| worst[id].is_some()).collect();
+        order.sort_by(|&a, &b| worst_margin(&worst[a]).total_cmp(&worst_margin(&worst[b])));
+        for &id in order.iter().take(SEARCHED_NETS) {
+            let (Some(t), Some(w)) = (thresholds[id], worst[id].as_mut()) else {
+                continue;
+            };
+            search.climb(id, t, w, patterns);
+        }
     }
     let mut levels: Vec<NetLevel> = worst
         .into_iter()
@@ -452,6 +494,7 @@ pub fn analyze_levels(
                 vil_v: t.vil_v,
                 vih_v: t.vih_v,
                 failures: failures[id],
+                path: Vec::new(),
             })
         })
         .collect();
@@ -460,6 +503,9 @@ pub fn analyze_levels(
             .total_cmp(&b.worst_margin_v)
             .then_with(|| a.net.cmp(&b.net))
     });
+    for level in levels.iter_mut().take(SEARCHED_NETS) {
+        level.path = search.degradation_path(&level.net, &level.worst_pattern, &thresholds);
+    }
     let histogram = histogram(&levels);
     Ok(LevelReport {
         design: netlist.name.clone(),
@@ -468,10 +514,95 @@ pub fn analyze_levels(
         supply_v: model.supply_v,
         logic_failures: failures.iter().sum(),
         failing_patterns,
+        search_evaluations: search.evaluations,
         average_static_power_nw: model.supply_v * total_current / patterns as f64 * 1e9,
         nets: levels,
         histogram,
     })
+}
+
+fn worst_margin(w: &Option<Worst>) -> f64 {
+    w.as_ref().map_or(f64::INFINITY, |w| w.0)
+}
+
+/// The worst-pattern search and path finder: evaluation buffers and a
+/// count of evaluations.
+struct Search<'a> {
+    netlist: &'a MappedNetlist,
+    library: &'a Library,
+    model: &'a LevelModel,
+    volts: Vec<f64>,
+    logic: Vec<bool>,
+    evaluations: u64,
+}
+
+impl Search<'_> {
+    fn evaluate(&mut self, pattern: &[bool]) {
+        evaluate(self.netlist, self.model, pattern, &mut self.volts);
+        evaluate_logic(self.netlist, self.library, pattern, &mut self.logic);
+        self.evaluations += 1;
+    }
+
+    /// Flips single inputs of `w`'s pattern while that lowers net `id`'s
+    /// margin, until no flip does or `budget` evaluations are spent in all.
+    fn climb(&mut self, id: usize, t: Thresholds, w: &mut Worst, budget: u64) {
+        let width = w.3.len();
+        loop {
+            let mut best: Option<(usize, f64, f64, bool)> = None;
+            for k in 0..width {
+                if self.evaluations >= budget {
+                    return;
+                }
+                let mut pattern = w.3.clone();
+                pattern[k] = !pattern[k];
+                self.evaluate(&pattern);
+                let (v, value) = (self.volts[id], self.logic[id]);
+                let (margin, _) = t.margin(v, value);
+                if margin < best.map_or(w.0, |b| b.1) {
+                    best = Some((k, margin, v, value));
+                }
+            }
+            let Some((k, margin, v, value)) = best else {
+                return;
+            };
+            w.3[k] = !w.3[k];
+            w.0 = margin;
+            w.1 = v;
+            w.2 = value;
+        }
+    }
+
+    /// The degradation path of net `name` on `pattern` (0/1 text).
+    fn degradation_path(
+        &mut self,
+        name: &str,
+        pattern: &str,
+        thresholds: &[Option<Thresholds>],
+    ) -> Vec<String> {
+        let Some(mut id) = self.netlist.nets.iter().position(|n| n.name == name) else {
+            return Vec::new();
+        };
+        let bits: Vec<bool> = pattern.chars().map(|c| c == '1').collect();
+        self.evaluate(&bits);
+        let mut path = vec![name.to_string()];
+        // Each step goes to an earlier instance, so the walk ends.
+        while let Driver::Cell(i) = self.netlist.nets[id].driver {
+            let inst = &self.netlist.instances[i as usize];
+            let weakest = inst.inputs.iter().copied().min_by(|&a, &b| {
+                let m = |n: NetId| {
+                    thresholds[n as usize].map_or(f64::INFINITY, |t| {
+                        t.margin(self.volts[n as usize], self.logic[n as usize]).0
+                    })
+                };
+                m(a).total_cmp(&m(b))
+            });
+            let Some(next) = weakest else { break };
+            id = next as usize;
+            path.push(self.netlist.nets[id].name.clone());
+        }
+        path.reverse();
+        path
+    }
 }
 
 /// Counts the nets' worst margins in 10 mV bins from the lowest to the
