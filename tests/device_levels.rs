@@ -428,6 +428,25 @@ fn levels_command_reports_units_and_exit_codes() {
         .code(0)
         .stdout(predicates::str::contains("levels    worst margin"))
         .stdout(predicates::str::contains("0 logic failures"));
+    // Bad input: no such netlist; zero random patterns for 17 inputs.
+    ribbonmap_cli(d)
+        .args(["levels", "missing.blif", "--lib", "lib.json"])
+        .assert()
+        .code(2)
+        .stderr(predicates::str::starts_with("error: "));
+    std::fs::write(d.join("add8.blif"), ripple_adder_blif(8)).unwrap();
+    ribbonmap_cli(d)
+        .args([
+            "levels",
+            "add8.blif",
+            "--lib",
+            "lib.json",
+            "--patterns",
+            "0",
+        ])
+        .assert()
+        .code(2)
+        .stderr(predicates::str::contains("random patterns"));
     // A library without electrical data is bad input.
     ribbonmap_cli(d)
         .args(["levels", "fa.blif", "--lib", "ribbon3"])
