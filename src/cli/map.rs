@@ -81,6 +81,11 @@ pub struct Args {
     /// Old name of --restructure (hidden alias, kept one release).
     #[arg(long = "optimize", hide = true)]
     pub old_optimize: bool,
+    /// Also check the static logic levels (characterised libraries only;
+    /// as `ribbonmap levels` with its defaults): the report gains the worst
+    /// margin, the logic failures and the static power from the voltages.
+    #[arg(long)]
+    pub levels: bool,
     /// Report format.
     #[arg(long, value_enum, default_value = "text")]
     pub format: ReportFormat,
@@ -231,6 +236,19 @@ pub fn run(args: Args) -> CmdResult {
         crate::study::mapped_energy(&netlist, &lib, &crate::study::power::Stimulus::default())
             .map_err(|e| CliError::Internal(format!("cannot estimate energy: {e}")))?;
     seconds.insert("energy".to_string(), t.elapsed().as_secs_f64());
+    let levels = if args.levels {
+        let t = Instant::now();
+        let report = super::levels::analyze_mapped(
+            &netlist,
+            &lib,
+            &args.lib,
+            &crate::device::levels::LevelOptions::default(),
+        )?;
+        seconds.insert("levels".to_string(), t.elapsed().as_secs_f64());
+        Some(report)
+    } else {
+        None
+    };
     let report = Report::new(&netlist, &lib, goal.name(), &timing, verified, seconds);
     match args.format {
         ReportFormat::Json => {
@@ -241,6 +259,12 @@ pub fn run(args: Args) -> CmdResult {
                 m.insert("static_power".into(), energy.static_power.into());
                 m.insert("run".into(), outcome.run.clone().into());
                 m.insert("runs".into(), run_points.into());
+                if let Some(levels) = &levels {
+                    let v = serde_json::to_value(levels).map_err(|e| {
+                        CliError::Internal(format!("cannot encode the report: {e}"))
+                    })?;
+                    m.insert("levels".into(), v);
+                }
                 if let Some(serde_json::Value::Object(units)) = m.get_mut("units") {
                     units.insert("energy".into(), lib.units.energy.clone().into());
                     units.insert("power".into(), lib.units.power.clone().into());
@@ -251,10 +275,13 @@ pub fn run(args: Args) -> CmdResult {
             outln!("{text}");
         }
         _ => {
-            let energy_lines = format!(
+            let mut energy_lines = format!(
                 "energy    {:.4} {} per operation\nstatic    {:.4} {}\n{run_line}",
                 energy.energy_per_op, lib.units.energy, energy.static_power, lib.units.power
             );
+            if let Some(levels) = &levels {
+                energy_lines += &super::levels::summary_line(levels);
+            }
             let text = report.to_text();
             match text.find("verified  ") {
                 Some(at) => out!("{}{energy_lines}{}", &text[..at], &text[at..]),

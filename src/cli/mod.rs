@@ -34,6 +34,7 @@ mod equiv;
 mod exact;
 mod generate;
 mod inspect;
+mod levels;
 mod library;
 mod map;
 pub mod netlist_args;
@@ -137,6 +138,8 @@ enum Command {
     Characterize(characterize::Args),
     /// Write a SPICE deck of a netlist mapped on a characterised library.
     Spice(spice::Args),
+    /// Check the static logic levels of a netlist mapped on a characterised library.
+    Levels(levels::Args),
 }
 
 /// Writes `text` to standard output. When the reader has closed the pipe
@@ -185,6 +188,7 @@ pub fn main() -> ExitCode {
         Command::Library(a) => library::run(a),
         Command::Characterize(a) => characterize::run(a),
         Command::Spice(a) => spice::run(a),
+        Command::Levels(a) => levels::run(a),
     };
     match result {
         Ok(code) => ExitCode::from(code),

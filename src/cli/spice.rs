@@ -5,8 +5,8 @@
 use super::common::load_library;
 use super::{CliError, CmdResult, EXIT_OK};
 use crate::cli::netlist_args::NetlistArgs;
-use crate::device::spice::{load_models, write_deck, Stimulus};
-use crate::library::electrical::read_electrical;
+use crate::device::spice::{load_models, write_deck, DeckModels, Stimulus};
+use crate::library::electrical::{read_electrical, ElectricalData};
 use crate::library::Library;
 use crate::mapper::{map, MapOptions};
 use crate::netlist::MappedNetlist;
@@ -52,15 +52,13 @@ pub fn parse_bits(text: &str, what: &str) -> Result<Vec<bool>, CliError> {
         .collect()
 }
 
-/// Writes the deck of `netlist` on `lib` (loaded from `lib_spec`) to
-/// `output`; shared with `map -o OUT.cir`.
-pub fn write_deck_file(
-    netlist: &MappedNetlist,
+/// Loads the tables and electrical data of the characterised library `lib`
+/// (loaded from `lib_spec`, a file or a built-in name); shared with
+/// `ribbonmap levels`.
+pub fn load_library_models(
     lib: &Library,
     lib_spec: &str,
-    stimulus: &Stimulus,
-    output: &Path,
-) -> Result<(), CliError> {
+) -> Result<(DeckModels, ElectricalData), CliError> {
     let (text, dir, shown) = if let Some(text) = crate::library::builtin_text(lib_spec) {
         (
             text.to_string(),
@@ -76,6 +74,19 @@ pub fn write_deck_file(
     };
     let data = read_electrical(&text);
     let models = load_models(lib, &data, &dir, &shown)?;
+    Ok((models, data))
+}
+
+/// Writes the deck of `netlist` on `lib` (loaded from `lib_spec`) to
+/// `output`; shared with `map -o OUT.cir`.
+pub fn write_deck_file(
+    netlist: &MappedNetlist,
+    lib: &Library,
+    lib_spec: &str,
+    stimulus: &Stimulus,
+    output: &Path,
+) -> Result<(), CliError> {
+    let (models, _) = load_library_models(lib, lib_spec)?;
     let stem = output
         .file_stem()
         .and_then(|s| s.to_str())

@@ -9,10 +9,13 @@
 //! `ribbonmap-library/1` file with its electrical data ([`library_write`])
 //! and an HTML report ([`report`]), and writes SPICE decks of mapped
 //! netlists that use the same tables ([`spice`]), so the derived numbers can
-//! be checked in a circuit simulator the user trusts.
+//! be checked in a circuit simulator the user trusts. [`levels`] finds the
+//! static voltage of every net of a mapped netlist from the same tables and
+//! its margins to the receiving cells' thresholds.
 
 pub mod characterize;
 pub mod kit;
+pub mod levels;
 pub mod library_write;
 pub mod report;
 pub mod spice;
