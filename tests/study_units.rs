@@ -105,6 +105,11 @@ fn normalised_comparison_prints_fo4_and_nand2_figures() {
     assert!(text.contains("area [NAND2 eq.]"), "{text}");
     let cmos_line = text.lines().find(|l| l.contains("cmos-le")).unwrap();
     assert!(cmos_line.contains("n/a"), "energy unmodelled: {text}");
+    let cmos_mean = text
+        .lines()
+        .find(|l| l.starts_with("geomean") && l.contains("cmos-le"))
+        .unwrap();
+    assert!(cmos_mean.contains("(n/a)"), "no energy ratio: {text}");
 
     let json: serde_json::Value = serde_json::from_str(&stdout_of(&compare(
         &netlist,

@@ -289,10 +289,12 @@ pub fn format_number(x: f64) -> String {
     }
 }
 
+/// A ratio for display; `n/a` when undefined (a figure the library does
+/// not model, or no baseline to divide by).
 fn format_ratio(r: Option<f64>) -> String {
     match r {
         Some(r) => format!("{r:.2}"),
-        None => "-".into(),
+        None => "n/a".into(),
     }
 }
 
