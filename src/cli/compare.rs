@@ -7,6 +7,7 @@ use super::{CliError, CmdResult, EXIT_OK};
 use crate::study::evaluate::{compare_reporting, EvaluateOptions};
 use crate::study::power::Stimulus;
 use crate::study::table::{render, ComparisonTable, Metric, TableFormat};
+use crate::study::units::{LibraryScale, TableUnits};
 use crate::study::{render_svg, Goal, StudyError, StudyRecord, VerifyMode};
 use std::path::{Path, PathBuf};
 
@@ -52,9 +53,21 @@ pub struct Args {
     /// Worker threads, 1 to 1024 (default: one per core).
     #[arg(long, value_name = "N", value_parser = clap::builder::RangedU64ValueParser::<usize>::new().range(1..=1024))]
     jobs: Option<usize>,
+    /// Compare in each library's yardsticks (FO4 delays, NAND2-equivalents,
+    /// inverter switchings), so different unit systems can be compared.
+    #[arg(long, long_help = NORMALIZE_HELP)]
+    normalize: bool,
     #[command(flatten)]
     read: NetlistArgs,
 }
+
+/// Help of `--normalize`, shared by `compare` and `tabulate`.
+pub(super) const NORMALIZE_HELP: &str =
+    "Show delay, area and energy in yardsticks of each library, so \
+libraries of different unit systems can be compared: delay in FO4 delays (the library's inverter \
+driving four inverters, intrinsic + per_load × 4 × input_load), area in NAND2-equivalents (its \
+two-input NAND's area, or AND2's where it has no NAND) and energy in its inverter's switching \
+energy (all common practice). Without it, libraries whose units differ are refused (exit 2).";
 
 /// The table format for a command-line format.
 pub(super) fn table_format(format: Format) -> TableFormat {
@@ -99,8 +112,9 @@ pub(super) fn print_table(
     format: Format,
     chart: Option<&Path>,
     metric: Metric,
+    units: TableUnits,
 ) -> Result<(), CliError> {
-    let table = ComparisonTable::build(records, baseline);
+    let table = ComparisonTable::build_in_units(records, baseline, units);
     out!("{}", render(&table, table_format(format)));
     if let Some(path) = chart {
         crate::fsutil::write_atomic(path, render_svg(&table, metric).as_bytes())
@@ -129,6 +143,11 @@ pub fn run(args: Args) -> CmdResult {
             )));
         }
     }
+    let scales = libraries
+        .iter()
+        .map(|l| (l.name.clone(), LibraryScale::of(l)))
+        .collect();
+    let units = TableUnits::new(scales, args.normalize).map_err(CliError::Input)?;
     if !(0.0..=1.0).contains(&args.input_probability) {
         return Err(CliError::Input(format!(
             "--input-probability {} is not between 0 and 1",
@@ -185,6 +204,7 @@ pub fn run(args: Args) -> CmdResult {
         args.format,
         args.chart.as_deref(),
         args.chart_metric,
+        units,
     )?;
     Ok(EXIT_OK)
 }

@@ -4,7 +4,8 @@
 use super::common::Format;
 use super::compare::print_table;
 use super::{CliError, CmdResult, EXIT_OK};
-use crate::study::{read_results, Metric};
+use crate::study::units::{LibraryScale, TableUnits};
+use crate::study::{read_results, Metric, StudyRecord};
 use std::path::PathBuf;
 
 /// Arguments of `ribbonmap tabulate`.
@@ -28,6 +29,43 @@ pub struct Args {
     /// Also write the combined, duplicate-free result lines to this file.
     #[arg(short = 'o', long = "output", value_name = "RESULTS.jsonl")]
     output: Option<PathBuf>,
+    /// Compare in each library's yardsticks (FO4 delays, NAND2-equivalents,
+    /// inverter switchings), so different unit systems can be compared.
+    #[arg(long, long_help = super::compare::NORMALIZE_HELP)]
+    normalize: bool,
+}
+
+/// Units and yardsticks of each library in `records`. A built-in library
+/// of the same name and units gives its yardsticks (and says whether it
+/// models energy); otherwise the units come from the result lines alone,
+/// which is enough to refuse mixed units but not to normalise.
+fn library_scales(records: &[StudyRecord], normalize: bool) -> Result<TableUnits, CliError> {
+    let mut scales = indexmap::IndexMap::new();
+    for r in records {
+        if scales.contains_key(&r.library) {
+            continue;
+        }
+        let recorded = LibraryScale::from_record(r);
+        let scale = match crate::library::Library::builtin(&r.library) {
+            Some(lib)
+                if (recorded.area_unit.is_empty() || recorded.area_unit == lib.units.area)
+                    && (recorded.delay_unit.is_empty()
+                        || recorded.delay_unit == lib.units.delay) =>
+            {
+                LibraryScale::of(&lib)
+            }
+            _ if normalize => {
+                return Err(CliError::Input(format!(
+                    "--normalize: library '{}' of the result lines is not a built-in library, \
+                     so its FO4 delay and NAND2 area are unknown",
+                    r.library
+                )))
+            }
+            _ => recorded,
+        };
+        scales.insert(r.library.clone(), scale);
+    }
+    TableUnits::new(scales, normalize).map_err(CliError::Input)
 }
 
 /// Runs the command.
@@ -53,6 +91,7 @@ pub fn run(args: Args) -> CmdResult {
             )));
         }
     }
+    let units = library_scales(&merged.records, args.normalize)?;
     if let Some(path) = &args.output {
         let mut text = String::new();
         for r in &merged.records {
@@ -68,6 +107,7 @@ pub fn run(args: Args) -> CmdResult {
         args.format,
         args.chart.as_deref(),
         args.chart_metric,
+        units,
     )?;
     Ok(EXIT_OK)
 }

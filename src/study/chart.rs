@@ -143,7 +143,7 @@ pub fn render_svg(table: &ComparisonTable, metric: Metric) -> String {
         r#"<text x="{axis_x:.1}" y="{:.1}" text-anchor="middle" transform="rotate(-90 {axis_x:.1} {:.1})">ratio ({})</text>"#,
         margin_top + plot_height / 2.0,
         margin_top + plot_height / 2.0,
-        xml_escape(metric.name())
+        xml_escape(&metric.header(&table.units))
     );
     // Bars.
     for (gi, (label, values)) in groups.iter().enumerate() {

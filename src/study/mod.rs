@@ -14,7 +14,9 @@
 //! - [`results`]: the append-only, crash-tolerant results file.
 //! - [`jobs`]: the parallel job engine; [`run`] drives it from a plan.
 //! - [`table`] and [`chart`]: comparison tables (text, Markdown, CSV, JSON,
-//!   LaTeX) and grouped bar charts (SVG) with ratios to a baseline library.
+//!   LaTeX) and grouped bar charts (SVG) with ratios to a baseline library;
+//!   [`units`] names each figure's unit and refuses ratios across unit
+//!   systems unless they are normalised.
 //!
 //! `ribbonmap compare`, `study` and `tabulate` are thin wrappers over these.
 
@@ -29,6 +31,7 @@ pub mod record;
 pub mod results;
 pub mod run;
 pub mod table;
+pub mod units;
 
 pub use chart::render_svg;
 pub use evaluate::{compare, evaluate, EvaluateOptions};

@@ -8,6 +8,7 @@
 //! JSON or a LaTeX booktabs tabular; the chart module draws its ratios.
 
 use super::record::StudyRecord;
+use super::units::{six_significant, TableUnits};
 use serde_json::json;
 
 /// A metric that has a ratio to the baseline.
@@ -62,6 +63,37 @@ impl Metric {
         }
     }
 
+    /// The metric's value as `units` shows it: normalised when asked,
+    /// `None` when the record's library does not model it.
+    pub fn shown(self, r: &StudyRecord, units: &TableUnits) -> Option<f64> {
+        match self {
+            Metric::Area => units.area(r),
+            Metric::Delay => units.delay(r),
+            Metric::Energy => units.energy(r),
+            _ => Some(self.value(r)),
+        }
+    }
+
+    /// Unit label of the metric in `units` (counts have none).
+    pub fn unit(self, units: &TableUnits) -> Option<String> {
+        let known = |u: &str| (!u.is_empty()).then(|| u.to_string());
+        match self {
+            Metric::Area => known(&units.area),
+            Metric::Delay => known(&units.delay),
+            Metric::Energy => units.energy.as_deref().and_then(known),
+            _ => None,
+        }
+    }
+
+    /// Header of the metric: its name and, when known, its unit in
+    /// brackets (`area [nm2]`).
+    pub fn header(self, units: &TableUnits) -> String {
+        match self.unit(units) {
+            Some(u) => format!("{} [{u}]", self.name()),
+            None => self.name().to_string(),
+        }
+    }
+
     fn is_integer(self) -> bool {
         matches!(self, Metric::Cells | Metric::Devices | Metric::Depth)
     }
@@ -72,6 +104,9 @@ impl Metric {
 pub struct TableRow {
     /// The record.
     pub record: StudyRecord,
+    /// Each metric ([`Metric::ALL`] order) as shown: normalised when the
+    /// table is, `None` when the library does not model it.
+    pub values: [Option<f64>; 6],
     /// Ratio of each metric ([`Metric::ALL`] order) to the baseline library
     /// of the same benchmark and goal; `None` when the baseline is missing
     /// or zero.
@@ -104,6 +139,8 @@ pub struct ComparisonTable {
     pub geomeans: Vec<GeomeanRow>,
     /// True when more than one goal occurs (the goal column is shown).
     pub several_goals: bool,
+    /// Units of the figures, and whether they are normalised.
+    pub units: TableUnits,
 }
 
 fn position_or_push(list: &mut Vec<String>, item: &str) -> usize {
@@ -120,6 +157,17 @@ impl ComparisonTable {
     /// Builds the table. `baseline` names the library ratios are relative
     /// to; by default the first library that occurs in `records`.
     pub fn build(records: &[StudyRecord], baseline: Option<&str>) -> ComparisonTable {
+        Self::build_in_units(records, baseline, TableUnits::from_records(records))
+    }
+
+    /// Builds the table with figures shown in `units` (checked by
+    /// [`TableUnits::new`]): ratios are taken between shown figures, so
+    /// normalised tables give ratios of FO4 delays and NAND2-equivalents.
+    pub fn build_in_units(
+        records: &[StudyRecord],
+        baseline: Option<&str>,
+        units: TableUnits,
+    ) -> ComparisonTable {
         let mut libraries: Vec<String> = Vec::new();
         if let Some(b) = baseline {
             libraries.push(b.to_string());
@@ -161,17 +209,20 @@ impl ComparisonTable {
                 let Some(r) = in_group.iter().find(|r| r.library == *lib) else {
                     continue;
                 };
+                let values = Metric::ALL.map(|m| m.shown(r, &units));
                 let mut ratios = [None; 6];
                 if let Some(base) = base {
                     for (i, m) in Metric::ALL.iter().enumerate() {
-                        let b = m.value(base);
-                        if b > 0.0 && b.is_finite() {
-                            ratios[i] = Some(m.value(r) / b);
+                        if let (Some(b), Some(v)) = (m.shown(base, &units), values[i]) {
+                            if b > 0.0 && b.is_finite() {
+                                ratios[i] = Some(v / b);
+                            }
                         }
                     }
                 }
                 rows.push(TableRow {
                     record: (*r).clone(),
+                    values,
                     ratios,
                 });
             }
@@ -213,6 +264,7 @@ impl ComparisonTable {
             rows,
             geomeans,
             several_goals: goals.len() > 1,
+            units,
         }
     }
 }
@@ -237,16 +289,20 @@ pub fn format_number(x: f64) -> String {
     }
 }
 
+/// A ratio for display; `n/a` when undefined (a figure the library does
+/// not model, or no baseline to divide by).
 fn format_ratio(r: Option<f64>) -> String {
     match r {
         Some(r) => format!("{r:.2}"),
-        None => "-".into(),
+        None => "n/a".into(),
     }
 }
 
 fn metric_cell(row: &TableRow, i: usize) -> String {
     let m = Metric::ALL[i];
-    let v = m.value(&row.record);
+    let Some(v) = row.values[i] else {
+        return "n/a".into();
+    };
     let value = if m.is_integer() {
         format!("{v:.0}")
     } else {
@@ -264,7 +320,7 @@ fn display_grid(t: &ComparisonTable) -> (Vec<String>, Vec<Vec<String>>, Vec<Vec<
     }
     header.push("library".into());
     for m in Metric::ALL {
-        header.push(m.name().into());
+        header.push(m.header(&t.units));
     }
     header.push("maj cells".into());
     header.push("verified".into());
@@ -308,6 +364,10 @@ fn display_grid(t: &ComparisonTable) -> (Vec<String>, Vec<Vec<String>>, Vec<Vec<
     (header, body, means)
 }
 
+/// What normalised figures mean, printed above a normalised table.
+pub const NORMALIZED_NOTE: &str = "normalised per library: delay in FO4 delays (its inverter driving four inverters), \
+area in NAND2-equivalents (its two-input NAND, or AND where none), energy in its inverter's switching energy";
+
 /// Aligned text for a terminal. Numbers are followed by their ratio to the
 /// baseline in parentheses.
 pub fn render_text(t: &ComparisonTable) -> String {
@@ -345,6 +405,10 @@ pub fn render_text(t: &ComparisonTable) -> String {
             &t.baseline
         }
     );
+    if t.units.normalize {
+        out.push_str(NORMALIZED_NOTE);
+        out.push('\n');
+    }
     out.push_str(&line(&header));
     out.push_str(&rule);
     for row in &body {
@@ -492,30 +556,36 @@ fn csv_field(s: &str) -> String {
 
 /// Comma-separated values: one line per benchmark × goal × library with all
 /// numbers and ratios, then geometric-mean lines (benchmark `geomean`,
-/// numbers empty).
+/// numbers empty). Headers name units (`area [nm2]`); numbers are rounded
+/// to six significant digits; a figure the library does not model is `n/a`.
 pub fn render_csv(t: &ComparisonTable) -> String {
-    let mut header: Vec<String> = [
-        "benchmark",
-        "goal",
-        "library",
-        "verified",
-        "cells",
-        "devices",
-        "area",
-        "depth",
-        "delay",
-        "energy_per_op",
-        "static_power",
-        "majority_cells",
-    ]
-    .iter()
-    .map(|s| s.to_string())
-    .collect();
+    let mut header: Vec<String> = ["benchmark", "goal", "library", "verified"]
+        .iter()
+        .map(|s| s.to_string())
+        .collect();
+    for m in Metric::ALL {
+        header.push(match m {
+            Metric::Energy => format!(
+                "energy_per_op{}",
+                m.unit(&t.units)
+                    .map(|u| format!(" [{u}]"))
+                    .unwrap_or_default()
+            ),
+            _ => m.header(&t.units),
+        });
+    }
+    header.push(match t.units.power.as_deref().filter(|u| !u.is_empty()) {
+        Some(u) => format!("static_power [{u}]"),
+        None => "static_power".into(),
+    });
+    header.push("majority_cells".into());
     for m in Metric::ALL {
         header.push(format!("{}_ratio", m.name()));
     }
+    let header: Vec<String> = header.iter().map(|h| csv_field(h)).collect();
     let mut out = header.join(",") + "\n";
-    let ratio = |r: Option<f64>| r.map(|x| format!("{x}")).unwrap_or_default();
+    let number = |x: Option<f64>| x.map(six_significant).unwrap_or_else(|| "n/a".into());
+    let ratio = |r: Option<f64>| r.map(six_significant).unwrap_or_default();
     for row in &t.rows {
         let r = &row.record;
         let mut cells = vec![
@@ -523,15 +593,10 @@ pub fn render_csv(t: &ComparisonTable) -> String {
             csv_field(&r.goal),
             csv_field(&r.library),
             csv_field(&r.verified),
-            r.cell_count.to_string(),
-            r.devices.to_string(),
-            format!("{}", r.area),
-            r.depth.to_string(),
-            format!("{}", r.delay),
-            format!("{}", r.energy_per_op),
-            format!("{}", r.static_power),
-            r.majority_cells.to_string(),
         ];
+        cells.extend(row.values.iter().map(|&v| number(v)));
+        cells.push(number(t.units.static_power(r)));
+        cells.push(r.majority_cells.to_string());
         cells.extend(row.ratios.iter().map(|&x| ratio(x)));
         out.push_str(&(cells.join(",") + "\n"));
     }
@@ -556,9 +621,12 @@ fn ratio_object(ratios: &[Option<f64>; 6]) -> serde_json::Value {
     serde_json::Value::Object(m)
 }
 
-/// JSON: `{"baseline", "libraries", "rows": [one object per benchmark ×
-/// library with all numbers and "ratios"], "geomean": [{goal, library,
-/// benchmarks, ratios}]}`.
+/// JSON: `{"baseline", "normalized", "units" (unit of each metric's shown
+/// figures and ratios; `null` for counts), "libraries", "rows": [one object
+/// per benchmark × library with all numbers in the library's own units
+/// (`units`), `null` for a figure it does not model, "normalized" figures
+/// when normalised, and "ratios"], "geomean": [{goal, library, benchmarks,
+/// ratios}]}`.
 pub fn render_json(t: &ComparisonTable) -> String {
     let rows: Vec<serde_json::Value> = t
         .rows
@@ -566,6 +634,24 @@ pub fn render_json(t: &ComparisonTable) -> String {
         .map(|row| {
             let mut v = serde_json::to_value(&row.record).unwrap_or(json!({}));
             if let serde_json::Value::Object(m) = &mut v {
+                m.insert(
+                    "energy_per_op".into(),
+                    json!(t
+                        .units
+                        .energy(&row.record)
+                        .map(|_| row.record.energy_per_op)),
+                );
+                m.insert(
+                    "static_power".into(),
+                    json!(t.units.static_power(&row.record)),
+                );
+                if t.units.normalize {
+                    let mut n = serde_json::Map::new();
+                    for (metric, value) in Metric::ALL.iter().zip(&row.values) {
+                        n.insert(metric.name().into(), json!(value));
+                    }
+                    m.insert("normalized".into(), serde_json::Value::Object(n));
+                }
                 m.insert("ratios".into(), ratio_object(&row.ratios));
             }
             v
@@ -583,8 +669,18 @@ pub fn render_json(t: &ComparisonTable) -> String {
             })
         })
         .collect();
+    let mut units = serde_json::Map::new();
+    for m in Metric::ALL {
+        units.insert(m.name().into(), json!(m.unit(&t.units)));
+    }
+    units.insert(
+        "static_power".into(),
+        json!(t.units.power.as_deref().filter(|u| !u.is_empty())),
+    );
     let doc = json!({
         "baseline": t.baseline,
+        "normalized": t.units.normalize,
+        "units": units,
         "libraries": t.libraries,
         "rows": rows,
         "geomean": means,
