@@ -50,7 +50,11 @@ pub struct Args {
     /// Write the mapped netlist here (.v or .blif; .aag or .aig writes its
     /// logic as an AIGER And-Inverter Graph), or a SPICE deck of it (.cir,
     /// characterised libraries only; all inputs 0, tables beside it).
-    #[arg(short = 'o', long = "output", value_name = "OUT.v|OUT.blif|OUT.aig|OUT.cir")]
+    #[arg(
+        short = 'o',
+        long = "output",
+        value_name = "OUT.v|OUT.blif|OUT.aig|OUT.cir"
+    )]
     pub output: Option<PathBuf>,
     /// How to check the result against the input.
     #[arg(long, value_enum, default_value = "full")]
