@@ -4,7 +4,7 @@
 # (or a failed task) resumes: jobs already in a results file are skipped.
 #
 #   sbatch examples/study_slurm.sh
-#   ribbonmap tabulate results-*.jsonl --format markdown --chart cells.svg
+#   ribbonmap tabulate results-*.jsonl --normalize --format markdown --chart cells.svg
 #
 #SBATCH --job-name=ribbonmap-study
 #SBATCH --array=1-8

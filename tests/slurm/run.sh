@@ -192,9 +192,9 @@ done
 
 # --- The check ---------------------------------------------------------------
 cd "$work/study"
-"$binary" tabulate results-*.jsonl -o merged.jsonl --format csv >merged.csv 2>tabulate.log \
+"$binary" tabulate results-*.jsonl -o merged.jsonl --normalize --format csv >merged.csv 2>tabulate.log \
     || fail "tabulate failed: $(cat tabulate.log)"
-"$binary" tabulate local.jsonl -o local-sorted.jsonl --format csv >local.csv 2>>tabulate.log \
+"$binary" tabulate local.jsonl -o local-sorted.jsonl --normalize --format csv >local.csv 2>>tabulate.log \
     || fail "tabulate of the local run failed: $(cat tabulate.log)"
 # Timing fields (seconds per phase) differ from run to run; all else must agree.
 strip_timing() {
