@@ -351,7 +351,16 @@ fn map_report_of_a_nand_on_cmos_le_in_text() {
         .iter()
         .position(|l| *l == "critical path, start first")
         .unwrap();
-    assert_eq!(lines.len(), at + 3, "{text}");
-    assert!(["  a", "  b"].contains(&lines[at + 1]), "{text}");
-    assert_eq!(lines[at + 2], "  y (nand2)");
+    // A header, then one stage a line: cell, net, load, stage delay,
+    // arrival. The input's stage starts at 0; the NAND's stage takes
+    // p + g * h = 2 + (4/3) * (3/4) = 3 tau (its output drives one unit
+    // load: primary_output_load 1, logical effort 4/3 over an input
+    // capacitance of 4/3 unit pins).
+    assert_eq!(lines.len(), at + 4, "{text}");
+    let input: Vec<&str> = lines[at + 2].split_whitespace().collect();
+    assert_eq!(input[0], "(input)", "{text}");
+    assert!(["a", "b"].contains(&input[1]), "{text}");
+    assert_eq!(&input[3..], ["0.000", "0.000"], "{text}");
+    let nand: Vec<&str> = lines[at + 3].split_whitespace().collect();
+    assert_eq!(nand, ["nand2", "y", "1.000", "3.000", "3.000"], "{text}");
 }
