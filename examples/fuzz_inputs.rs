@@ -1,13 +1,19 @@
 //! A mutation fuzzer for every reader of user input, on stable Rust.
 //!
-//! Each reader (Verilog, BLIF, BENCH, library JSON, study plans, result
-//! lines) gets a corpus of seed files from the repository and a few written
+//! Each reader (Verilog, BLIF, BENCH, AIGER, library JSON, study plans,
+//! result lines) gets a corpus of seed files from the repository and a few written
 //! here; every fuzz input is a seed changed by one to four random mutations
 //! (byte flips, insertions, deletions, duplicated or repeated ranges,
 //! format keywords, unusual numbers, splices of two seeds). The reader runs
 //! in this process under `catch_unwind`; a global allocator counts the bytes
 //! live, so the peak of each input is measured; a watchdog thread notices an
 //! input that runs longer than the time limit.
+//!
+//! Time is measured twice: wall-clock seconds, and the CPU seconds of this
+//! process (from /proc/self/stat on Linux). An input is counted as slow
+//! when its CPU time passes the limit, so a campaign on a shared, loaded
+//! machine counts the readers' work and not the waiting; the slowest wall
+//! time is printed beside it. Where /proc is missing, wall time is used.
 //!
 //! Before an input runs it is written to `fuzz-findings/current.<reader>`,
 //! so an input that aborts the process (a stack overflow, an allocation the
@@ -22,7 +28,10 @@
 //! Defaults: 100,000 inputs per reader, seed 1, all readers, 5 s and
 //! 500 MB. The same seed gives the same inputs. Runs on one core.
 
-use ribbonmap::io::{read_netlist_str, write_blif, NetlistFormat, ReadOptions};
+use ribbonmap::io::{
+    read_netlist, read_netlist_bytes, read_netlist_str, write_aiger, write_blif, NetlistFormat,
+    ReadOptions,
+};
 use ribbonmap::library::Library;
 use ribbonmap::study::results::check_result_line;
 use ribbonmap::study::Plan;
@@ -91,21 +100,37 @@ impl Random {
     }
 }
 
+/// CPU seconds (user + system) of this process so far, from
+/// /proc/self/stat (fields 14 and 15, in clock ticks of 1/100 s, the
+/// Linux default), or `None` where that file does not exist.
+fn cpu_seconds() -> Option<f64> {
+    let stat = std::fs::read_to_string("/proc/self/stat").ok()?;
+    // The command name (field 2) may hold spaces; it ends at the last ')'.
+    let rest = &stat[stat.rfind(')')? + 2..];
+    let fields: Vec<&str> = rest.split(' ').collect();
+    // `rest` starts at field 3, so fields 14 and 15 are at 11 and 12.
+    let utime: f64 = fields.get(11)?.parse().ok()?;
+    let stime: f64 = fields.get(12)?.parse().ok()?;
+    Some((utime + stime) / 100.0)
+}
+
 /// The readers under test.
 #[derive(Clone, Copy, Debug, PartialEq)]
 enum Reader {
     Verilog,
     Blif,
     Bench,
+    Aiger,
     Library,
     Plan,
     Results,
 }
 
-const READERS: [Reader; 6] = [
+const READERS: [Reader; 7] = [
     Reader::Verilog,
     Reader::Blif,
     Reader::Bench,
+    Reader::Aiger,
     Reader::Library,
     Reader::Plan,
     Reader::Results,
@@ -117,6 +142,7 @@ impl Reader {
             Reader::Verilog => "verilog",
             Reader::Blif => "blif",
             Reader::Bench => "bench",
+            Reader::Aiger => "aiger",
             Reader::Library => "library",
             Reader::Plan => "plan",
             Reader::Results => "results",
@@ -213,6 +239,25 @@ impl Reader {
             Reader::Bench => &[
                 "INPUT(", "OUTPUT(", " = ", "AND(", "NAND(", "OR(", "NOR(", "DFF(", "NOT(", "XOR(",
                 "BUFF(", ")", ",", "#", "\n", "G1", "G22",
+            ],
+            Reader::Aiger => &[
+                "aag ",
+                "aig ",
+                "\n",
+                " ",
+                "0",
+                "1",
+                "2",
+                "3",
+                "7",
+                "\u{80}",
+                "\u{ff}",
+                "i0 ",
+                "l0 ",
+                "o0 ",
+                "b0 ",
+                "c\n",
+                "4294967295",
             ],
             Reader::Library => &[
                 "{",
@@ -323,6 +368,36 @@ fn seeds(reader: Reader, root: &Path) -> Vec<Vec<u8>> {
                 "INPUT(d)\nOUTPUT(q)\nq = DFF(n)\nn = NOT(q)\nm = AND(d, q)\n",
                 "INPUT(a)\nOUTPUT(o)\no = OR(a, b)\nb = BUFF(a)\n",
             ]);
+        }
+        Reader::Aiger => {
+            add_dir("tests/data/bad", "aag", 8192);
+            // The small reference netlists written in both AIGER encodings.
+            let opts = ReadOptions::default();
+            let mut found = Vec::new();
+            for dir in [
+                "tests/data/reference/netlists/iscas85",
+                "tests/data/reference/netlists/iscas89",
+            ] {
+                if let Ok(entries) = std::fs::read_dir(root.join(dir)) {
+                    found.extend(entries.filter_map(|e| e.ok().map(|e| e.path())));
+                }
+            }
+            found.sort();
+            let mut encoded = Vec::new();
+            for path in found {
+                let small = std::fs::metadata(&path).is_ok_and(|m| m.len() <= 4096);
+                if let (true, Ok(net)) = (small, read_netlist(&path, &opts)) {
+                    encoded.push(write_aiger(&net, false, Some("seed")));
+                    encoded.push(write_aiger(&net, true, None));
+                }
+            }
+            encoded
+                .push(b"aag 3 2 0 1 1\n2\n4\n6\n6 2 4\ni0 a\ni1 b\no0 y\nc\ninvented\n".to_vec());
+            encoded.push(b"aag 1 0 1 1 0\n2 3 1\n2\n".to_vec());
+            let mut out: Vec<Vec<u8>> =
+                files.iter().filter_map(|p| std::fs::read(p).ok()).collect();
+            out.extend(encoded);
+            return out;
         }
         Reader::Library => {
             add_dir("libraries", "json", 65536);
@@ -456,6 +531,17 @@ fn mutate(input: &mut Vec<u8>, rng: &mut Random, dictionary: &[&str], seeds: &[V
 /// Runs one reader on `bytes`. Errors are the expected outcome for most
 /// inputs; only panics, time and memory matter.
 fn run_reader(reader: Reader, bytes: &[u8], plan_dir: &Path, library: &Library) {
+    if reader == Reader::Aiger {
+        let opts = ReadOptions::default();
+        if let Ok(net) = read_netlist_bytes(bytes, "fuzz.aig", NetlistFormat::Aig, &opts) {
+            let again = write_blif(&net);
+            drop(net);
+            if let Err(e) = read_netlist_str(&again, "again.blif", NetlistFormat::Blif, &opts) {
+                panic!("a network read from fuzz input does not read back from BLIF: {e}");
+            }
+        }
+        return;
+    }
     let text = match ribbonmap::diag::utf8_text("fuzz", bytes.to_vec()) {
         Ok(t) => t,
         Err(_) => String::from_utf8_lossy(bytes).into_owned(),
@@ -468,6 +554,7 @@ fn run_reader(reader: Reader, bytes: &[u8], plan_dir: &Path, library: &Library) 
         if let Ok(net) = read_netlist_str(&text, "fuzz", format, &opts) {
             // What was read must write and read back.
             let again = write_blif(&net);
+            drop(net);
             if let Err(e) = read_netlist_str(&again, "again.blif", NetlistFormat::Blif, &opts) {
                 panic!("a network read from fuzz input does not read back from BLIF: {e}");
             }
@@ -477,6 +564,7 @@ fn run_reader(reader: Reader, bytes: &[u8], plan_dir: &Path, library: &Library) 
         Reader::Verilog => netlist(NetlistFormat::Verilog),
         Reader::Blif => netlist(NetlistFormat::Blif),
         Reader::Bench => netlist(NetlistFormat::Bench),
+        Reader::Aiger => unreachable!("read above as bytes"),
         Reader::Library => {
             let _ = Library::from_json_str(&text, "fuzz.json");
         }
@@ -548,6 +636,7 @@ struct Tally {
     slow: u64,
     heavy: u64,
     slowest: f64,
+    slowest_wall: f64,
     heaviest: usize,
     bytes: u64,
 }
@@ -598,7 +687,7 @@ fn main() {
     }
 
     println!(
-        "reader   inputs   panics  over {:.0} s  over {:.0} MB  slowest s  peak MB  MB read",
+        "reader   inputs   panics  over {:.0} CPU-s  over {:.0} MB  slowest CPU-s  slowest wall s  peak MB  MB read",
         settings.seconds, settings.megabytes
     );
     let mut total_failures = 0;
@@ -636,17 +725,23 @@ fn main() {
             started_ms.store(epoch.elapsed().as_millis() as u64, Ordering::Relaxed);
             running.store(true, Ordering::Relaxed);
             let t = Instant::now();
+            let cpu_before = cpu_seconds();
             IN_INPUT.store(true, Ordering::Relaxed);
             let outcome = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
                 run_reader(reader, &input, plan_dir.path(), &library)
             }));
             IN_INPUT.store(false, Ordering::Relaxed);
-            let seconds = t.elapsed().as_secs_f64();
+            let wall = t.elapsed().as_secs_f64();
+            let seconds = match (cpu_before, cpu_seconds()) {
+                (Some(before), Some(after)) => after - before,
+                _ => wall,
+            };
             running.store(false, Ordering::Relaxed);
             let peak = PEAK.load(Ordering::Relaxed).saturating_sub(base);
             tally.inputs += 1;
             tally.bytes += input.len() as u64;
             tally.slowest = tally.slowest.max(seconds);
+            tally.slowest_wall = tally.slowest_wall.max(wall);
             tally.heaviest = tally.heaviest.max(peak);
             let mut keep = None;
             if outcome.is_err() {
@@ -669,7 +764,7 @@ fn main() {
                     .join(format!("{}-{kind}-{n}.in", reader.name()));
                 let _ = std::fs::write(&path, &input);
                 eprintln!(
-                    "fuzz: {} input {n}: {kind} ({seconds:.2} s, {:.1} MB) saved as {}",
+                    "fuzz: {} input {n}: {kind} ({seconds:.2} CPU-s, {wall:.2} s wall, {:.1} MB) saved as {}",
                     reader.name(),
                     peak as f64 / 1e6,
                     path.display()
@@ -691,13 +786,14 @@ fn main() {
         let _ = std::fs::remove_file(&current);
         total_failures += tally.panics + tally.slow + tally.heavy;
         println!(
-            "{:<8} {:>7}  {:>7}  {:>8}  {:>10}  {:>9.3}  {:>7.1}  {:>7.1}",
+            "{:<8} {:>7}  {:>7}  {:>12}  {:>10}  {:>13.2}  {:>14.3}  {:>7.1}  {:>7.1}",
             reader.name(),
             tally.inputs,
             tally.panics,
             tally.slow,
             tally.heavy,
             tally.slowest,
+            tally.slowest_wall,
             tally.heaviest as f64 / 1e6,
             tally.bytes as f64 / 1e6
         );

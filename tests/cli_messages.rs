@@ -4,7 +4,7 @@
 //! absurd option values are refused with the allowed range, and an `exact`
 //! search that stops undecided says so.
 //!
-//! The expected texts are the documented ones (docs/cli.md, docs/exit-codes.md).
+//! The expected texts are the documented ones (docs/README.md, docs/exit-codes.md, docs/json-output.md).
 
 use assert_cmd::Command;
 
@@ -34,6 +34,10 @@ fn each_format_option_lists_exactly_what_the_command_prints() {
         ),
         (vec!["equiv", C17, C17], "[possible values: text, json]"),
         (vec!["inspect", C17], "[possible values: text, json]"),
+        (
+            vec!["characterize", "kit.json", "-o", "lib.json"],
+            "[possible values: text, json]",
+        ),
     ] {
         for bad in ["csv", "markdown", "latex"] {
             let mut full = args.clone();
@@ -53,7 +57,7 @@ fn each_format_option_lists_exactly_what_the_command_prints() {
     ]);
     assert_eq!(out.status.code(), Some(2));
     assert!(
-        stderr(&out).contains("[possible values: blif, verilog]"),
+        stderr(&out).contains("[possible values: blif, verilog, aag, aig]"),
         "{}",
         stderr(&out)
     );
@@ -136,9 +140,97 @@ fn exact_that_stops_undecided_says_undecided() {
     ]);
     let text = stderr(&out);
     assert_eq!(out.status.code(), Some(3), "{text}");
+    // A network found but not proven minimal is reported on standard
+    // output; a search stopped before any network says `undecided:`.
     if !text.is_empty() {
         assert!(text.starts_with("undecided:"), "{text}");
         assert!(!text.contains("error:"), "{text}");
+    }
+    // In JSON the question always comes back, and `found` tells whether a
+    // network follows (docs/json-output.md, `exact`).
+    let out = ribbonmap(&[
+        "exact",
+        "0x96,0xE8",
+        "--inputs",
+        "3",
+        "--lib",
+        "ribbon2",
+        "--conflict-limit",
+        "1",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(out.status.code(), Some(3), "{}", stderr(&out));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["optimal"], false);
+    match v["found"].as_bool() {
+        Some(true) => assert!(v["cells"].as_u64().is_some_and(|c| c >= 2), "{v}"),
+        Some(false) => assert!(v.get("cells").is_none(), "{v}"),
+        None => panic!("no `found` field: {v}"),
+    }
+    assert_eq!(v["objective"], "cells");
+    assert_eq!(v["function"], serde_json::json!(["0x96", "0xE8"]));
+}
+
+/// Every command's help spells one kind of value one way: a library is
+/// `<LIB>` (name or file), a count `<N>` (docs/README.md).
+#[test]
+fn help_texts_use_one_metavariable_per_kind_of_value() {
+    let commands: &[&[&str]] = &[
+        &["inspect"],
+        &["map"],
+        &["equiv"],
+        &["exact"],
+        &["coverage"],
+        &["compare"],
+        &["study"],
+        &["tabulate"],
+        &["generate"],
+        &["library", "list"],
+        &["library", "show"],
+        &["library", "check"],
+        &["characterize"],
+        &["spice"],
+        &["levels"],
+    ];
+    for command in commands {
+        let mut args = command.to_vec();
+        args.push("--help");
+        let out = ribbonmap(&args);
+        assert!(out.status.success(), "{args:?}");
+        let help = String::from_utf8_lossy(&out.stdout).into_owned();
+        for line in help.lines() {
+            let line = line.trim_start();
+            // "-w, --width <N>": look at the long name.
+            let line = match line.split_once(", ") {
+                Some((short, long)) if short.len() == 2 && short.starts_with('-') => long,
+                _ => line,
+            };
+            if let Some(rest) = line.strip_prefix("--lib ") {
+                assert!(rest.starts_with("<LIB>"), "{args:?}: {line}");
+            }
+            for count in [
+                "--width",
+                "--inputs",
+                "--jobs",
+                "--patterns",
+                "--cut-size",
+                "--cuts-per-node",
+                "--conflict-limit",
+                "--term-limit",
+                "--max-steps",
+                "--max-nets",
+            ] {
+                if let Some(rest) = line.strip_prefix(count) {
+                    if rest.starts_with(' ') {
+                        assert!(rest.starts_with(" <N>"), "{args:?}: {line}");
+                    }
+                }
+            }
+        }
+        for positional in ["<LIBRARY>", "<FILE>"] {
+            assert!(!help.contains(positional), "{args:?}: {positional}");
+        }
     }
 }
 
@@ -244,7 +336,22 @@ fn study_plans_are_checked_whole_and_absolute_paths_kept() {
         "1/9",
     ]);
     assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
-    assert!(stderr(&out).contains("nope.json"), "{}", stderr(&out));
+    // The message points at the library's place in the plan (line 1, the
+    // column of its opening quote), and no results file was started.
+    let column = std::fs::read_to_string(&plan)
+        .unwrap()
+        .find("\"nope.json\"")
+        .unwrap()
+        + 1;
+    assert!(
+        stderr(&out).starts_with(&format!(
+            "error: {}:1:{column}: library 'nope.json'",
+            plan.display()
+        )),
+        "{}",
+        stderr(&out)
+    );
+    assert!(!results.exists(), "the results file was created");
     // An absolute path is written back as given, with one leading slash.
     std::fs::write(
         &plan,

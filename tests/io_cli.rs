@@ -4,7 +4,7 @@
 //!
 //! Outside checks: the 8-bit adder is compared by `equiv` (a proof) with
 //! the same circuit in BLIF; the bound's reproducer (a doubling hierarchy,
-//! 2^23 leaves) is sized by integer arithmetic.
+//! 2^10 leaves against a bound of 1000) is sized by integer arithmetic.
 
 use assert_cmd::Command;
 use std::path::Path;

@@ -77,7 +77,9 @@ proptest! {
     fn replication_nests_give_parity_or_a_located_width_error(counts in proptest::collection::vec(1u32..48, 1..5)) {
         let (e, width) = replication(&counts);
         let text = format!("module m(a, y); input a; output y; assign y = ^{e}; endmodule\n");
-        match read(&text, "r.v", NetlistFormat::Verilog, None) {
+        // The net bound raised past any width allowed, so the width bound
+        // is what refuses.
+        match read(&text, "r.v", NetlistFormat::Verilog, Some(1 << 23)) {
             Ok(net) => {
                 prop_assert!(width <= MAX_EXPRESSION_WIDTH);
                 // XOR of `width` copies of a: a when width is odd, else 0.
@@ -210,4 +212,50 @@ fn other_initial_content_is_refused_clearly() {
         assert_eq!(err.line, line, "{err}");
         assert!(err.message.contains("constant start values"), "{err}");
     }
+}
+
+/// A few bytes of Verilog declaring many port bits within a raised net
+/// bound (7 × 2^20 = 7,340,032 bits < 2^23) are refused at the port that
+/// passes the port-bit bound of docs/netlist-formats.md (2^23 / 16 =
+/// 524,288 bits, integer arithmetic), not read for seconds; at the default
+/// bound 65,536 port bits (2^20 / 16) are allowed.
+#[test]
+fn wide_ports_within_the_net_bound_are_refused_by_the_port_bound() {
+    let ports: Vec<String> = (0..7).map(|i| format!("p{i}")).collect();
+    let text = format!(
+        "module m({}, y);\n{}\noutput y;\nassign y = p0[0];\nendmodule\n",
+        ports.join(", "),
+        ports
+            .iter()
+            .map(|p| format!("input [1048575:0] {p};"))
+            .collect::<Vec<_>>()
+            .join("\n")
+    );
+    let raised = ReadOptions {
+        max_nets: Some(1 << 23),
+        ..ReadOptions::default()
+    };
+    let err = read_netlist_str(&text, "w.v", NetlistFormat::Verilog, &raised).expect_err("refused");
+    assert_eq!(err.line, 2, "{err}");
+    assert!(err.message.contains("524288 port bits"), "{err}");
+    // 65,536 port bits in all are allowed (65,535 + 1).
+    let text = "module m(a, y);\ninput [65534:0] a;\noutput y;\nassign y = a[0];\nendmodule\n";
+    read_netlist_str(
+        text,
+        "ok.v",
+        NetlistFormat::Verilog,
+        &ReadOptions::default(),
+    )
+    .unwrap();
+}
+
+/// A fuzz finding (examples/fuzz_inputs.rs): a doubling hierarchy whose
+/// model m_23 instantiates m_34 above it, a cycle. The search for the
+/// smallest too-large model walked around the cycle for ever; now the file
+/// is refused at once with a located error.
+#[test]
+fn a_cyclic_doubling_hierarchy_is_refused_without_hanging() {
+    let text = std::fs::read_to_string("tests/data/bad/cyclic_doubling.blif").unwrap();
+    let err = read(&text, "c.blif", NetlistFormat::Blif, None).unwrap_err();
+    assert!(err.line >= 1, "{err}");
 }

@@ -2,7 +2,7 @@
 //! from its conductance tables, write the library (and optionally the HTML
 //! report), and print a summary with units.
 
-use super::common::Format;
+use super::common::ReportFormat;
 use super::{CliError, CmdResult, EXIT_OK};
 use crate::device::{characterize, read_kit, Characterization};
 use std::path::{Path, PathBuf};
@@ -21,7 +21,7 @@ pub struct Args {
     pub report: Option<PathBuf>,
     /// Summary format.
     #[arg(long, value_enum, default_value = "text")]
-    pub format: Format,
+    pub format: ReportFormat,
 }
 
 /// Runs the command.
@@ -51,13 +51,13 @@ pub fn run(args: Args) -> CmdResult {
         write(report, &html)?;
     }
     match args.format {
-        Format::Json => {
+        ReportFormat::Json => {
             let value = summary_json(&ch, &args.output);
             let text = serde_json::to_string_pretty(&value)
                 .map_err(|e| CliError::Internal(format!("cannot encode the summary: {e}")))?;
             outln!("{text}");
         }
-        _ => out!("{}", summary_text(&ch, &args.output)),
+        ReportFormat::Text => out!("{}", summary_text(&ch, &args.output)),
     }
     Ok(EXIT_OK)
 }

@@ -84,6 +84,8 @@ pub fn run(args: Args) -> CmdResult {
         },
         ..EquivOptions::default()
     };
+    // Long proofs show progress on a terminal (nothing in pipes or CI).
+    crate::equiv::show_progress();
     let report = check_with_stats(&a, &b, &opts).map_err(|e| match e {
         EquivError::Internal(m) => CliError::Internal(m),
         other => CliError::Input(format!(

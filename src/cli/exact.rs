@@ -62,6 +62,16 @@ fn operand_json(op: &crate::exact::Operand) -> serde_json::Value {
     serde_json::json!({ "from": from, "index": index, "complemented": op.complemented })
 }
 
+/// The objective's name in reports, as `--objective` spells it and
+/// docs/json-output.md documents it.
+fn objective_name(objective: ObjectiveArg) -> &'static str {
+    match objective {
+        ObjectiveArg::Cells => "cells",
+        ObjectiveArg::Area => "area",
+        ObjectiveArg::Depth => "depth",
+    }
+}
+
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
     if args.inputs > 5 {
@@ -113,6 +123,23 @@ pub fn run(args: Args) -> CmdResult {
             eprintln!(
                 "undecided: a resource limit stopped the search before any network was found"
             );
+            if args.format == ReportFormat::Json {
+                // A JSON reader still gets one object: the question, no network.
+                let value = serde_json::json!({
+                    "function": functions.iter().map(|f| format!("0x{f:X}")).collect::<Vec<_>>(),
+                    "inputs": args.inputs,
+                    "library": library.name,
+                    "objective": objective_name(args.objective),
+                    "free_complements": args.free_complements,
+                    "found": false,
+                    "optimal": false,
+                });
+                outln!(
+                    "{}",
+                    serde_json::to_string_pretty(&value)
+                        .map_err(|e| CliError::Internal(e.to_string()))?
+                );
+            }
             return Ok(EXIT_UNDECIDED);
         }
         Err(ExactError::Internal(m)) => return Err(CliError::Internal(m)),
@@ -120,7 +147,7 @@ pub fn run(args: Args) -> CmdResult {
     };
     let seconds = start.elapsed().as_secs_f64();
     let tables: Vec<String> = functions.iter().map(|f| format!("0x{f:X}")).collect();
-    let objective_name = format!("{objective:?}").to_lowercase();
+    let objective_name = objective_name(args.objective);
     match args.format {
         ReportFormat::Json => {
             let value = serde_json::json!({
@@ -129,6 +156,7 @@ pub fn run(args: Args) -> CmdResult {
                 "library": library.name,
                 "objective": objective_name,
                 "free_complements": args.free_complements,
+                "found": true,
                 "cells": result.cells,
                 "area": result.area,
                 "depth": result.depth,

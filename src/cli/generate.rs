@@ -49,6 +49,10 @@ pub enum WriterFormat {
     Blif,
     /// Structural Verilog.
     Verilog,
+    /// AIGER, ASCII encoding.
+    Aag,
+    /// AIGER, binary encoding.
+    Aig,
 }
 
 impl From<WriterFormat> for NetlistFormat {
@@ -56,6 +60,8 @@ impl From<WriterFormat> for NetlistFormat {
         match f {
             WriterFormat::Blif => NetlistFormat::Blif,
             WriterFormat::Verilog => NetlistFormat::Verilog,
+            WriterFormat::Aag => NetlistFormat::Aag,
+            WriterFormat::Aig => NetlistFormat::Aig,
         }
     }
 }

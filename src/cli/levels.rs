@@ -31,7 +31,7 @@ pub struct Args {
     /// The netlist (.blif, .v, .bench); it is mapped onto the library first.
     pub netlist: PathBuf,
     /// A characterised library file (written by `ribbonmap characterize`).
-    #[arg(long, value_name = "FILE")]
+    #[arg(long, value_name = "LIB")]
     pub lib: String,
     /// Random patterns when the netlist has more than 16 inputs (up to
     /// 16,777,216); with 16 or fewer every pattern is analysed.

@@ -48,6 +48,7 @@ enum Action {
     /// Print every cell of a library with its function, truth table, NPN class and costs.
     Show {
         /// A built-in library name or a library file.
+        #[arg(value_name = "LIB")]
         library: String,
         /// Output format.
         #[arg(long, value_enum, default_value_t = LibraryFormat::Text)]
@@ -56,6 +57,7 @@ enum Action {
     /// Check a library file and list every problem (exit 1 if there are any).
     Check {
         /// The library file.
+        #[arg(value_name = "LIB")]
         file: String,
         /// Output format.
         #[arg(long, value_enum, default_value_t = LibraryFormat::Text)]

@@ -26,7 +26,8 @@ pub struct NetlistArgs {
     #[arg(long = "storage", value_name = "CELL:D:Q:CK")]
     pub storage: Vec<StorageCellSpec>,
     /// The most one-bit nets the flattened design may have (default
-    /// 8388608); larger files are refused before they are flattened.
+    /// 1048576; the top Verilog module's port bits at most N/16); larger
+    /// files are refused before they are flattened.
     #[arg(long = "max-nets", value_name = "N", value_parser = clap::value_parser!(u64).range(1..))]
     pub max_nets: Option<u64>,
 }

@@ -18,7 +18,7 @@ pub struct Args {
     /// The netlist (.blif, .v, .bench); it is mapped onto the library first.
     pub netlist: PathBuf,
     /// A characterised library file (written by `ribbonmap characterize`).
-    #[arg(long, value_name = "FILE")]
+    #[arg(long, value_name = "LIB")]
     pub lib: String,
     /// Write the deck here; the table files go beside it.
     #[arg(short = 'o', long = "output", value_name = "DECK.cir")]
@@ -124,10 +124,10 @@ pub fn run(args: Args) -> CmdResult {
     };
     write_deck_file(&netlist, &lib, &args.lib, &stimulus, &args.output)?;
     outln!(
-        "deck      {} ({} cells, {} inputs: {}; tables beside it)\nrun       ngspice -b {}",
+        "deck      {} ({}, {}: {}; tables beside it)\nrun       ngspice -b {}",
         args.output.display(),
-        netlist.instances.len(),
-        width,
+        super::common::counted(netlist.instances.len() as u64, "cell"),
+        super::common::counted(width as u64, "input"),
         netlist
             .inputs
             .iter()

@@ -70,6 +70,7 @@ mod miter;
 pub(crate) mod oracle;
 mod ports;
 mod progress;
+pub use progress::show_progress;
 mod replay;
 mod sweep;
 mod window;
@@ -384,7 +385,9 @@ pub fn check_with_stats(
     let started = Instant::now();
     let mut undecided = Vec::new();
     let mut verdict = None;
+    let progress = progress::Progress::new("output proofs", miter.pairs.len() as u64);
     for pair in &miter.pairs {
+        progress.advance(1);
         let (x, y) = (swept.lit(pair.a), swept.lit(pair.b));
         if window.prove(&swept.reduced, x, y) == WindowAnswer::Proven {
             continue;
@@ -402,6 +405,7 @@ pub fn check_with_stats(
             }
         }
     }
+    progress.finish();
     stats.output_seconds = started.elapsed().as_secs_f64();
     stats.oracle = oracle.stats;
     stats.window = window.stats;

@@ -4,11 +4,22 @@
 //! 64 x 64 multiplier takes seconds; a bar on standard error tells the user
 //! the tool is working. Nothing is drawn when standard error is not a
 //! terminal (pipes, files, tests), and short proofs finish before the bar
-//! appears.
+//! appears. Bars are drawn only once [`show_progress`] was called: the
+//! `equiv` command asks for them, while commands that run proofs under a
+//! bar of their own (`compare`, `study`) leave them off so that two bars
+//! never overwrite each other's line.
 
 use std::io::IsTerminal;
-use std::sync::atomic::{AtomicU64, Ordering};
+use std::sync::atomic::{AtomicBool, AtomicU64, Ordering};
 use std::time::{Duration, Instant};
+
+/// Whether proofs draw their own progress bars (see the module comment).
+static SHOWN: AtomicBool = AtomicBool::new(false);
+
+/// Lets the proofs of this process draw progress bars on a terminal.
+pub fn show_progress() {
+    SHOWN.store(true, Ordering::Relaxed);
+}
 
 /// Delay before the bar appears.
 const SHOW_AFTER: Duration = Duration::from_millis(700);
@@ -24,7 +35,8 @@ pub(crate) struct Progress {
 impl Progress {
     /// A counter of `total` steps labelled `what`.
     pub fn new(what: &str, total: u64) -> Progress {
-        let bar = std::io::stderr().is_terminal().then(|| {
+        let shown = SHOWN.load(Ordering::Relaxed) && std::io::stderr().is_terminal();
+        let bar = shown.then(|| {
             let bar = indicatif::ProgressBar::hidden();
             bar.set_length(total);
             if let Ok(style) =

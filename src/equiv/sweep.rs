@@ -21,6 +21,7 @@
 
 use super::classes::Classes;
 use super::oracle::{Answer, Oracle};
+use super::progress::Progress;
 use super::window::{WindowAnswer, WindowProver};
 use crate::network::{Lit, Network, NodeId, NodeKind};
 
@@ -111,7 +112,11 @@ pub(crate) fn sweep(
     let mut patterns = PatternWord::new(miter.inputs().len());
     let mut values = Vec::new();
     let map = |image: &[Lit], l: Lit| image[l.node().index()].xor(l.is_complemented());
+    let progress = Progress::new("SAT sweeping", miter.num_nodes() as u64);
     for id in miter.node_ids() {
+        if id.index() % 256 == 0 {
+            progress.advance(256.min(miter.num_nodes() - id.index()) as u64);
+        }
         let f = miter.fanins(id);
         let mut own = match miter.kind(id) {
             NodeKind::Const | NodeKind::Input => continue,
@@ -159,5 +164,6 @@ pub(crate) fn sweep(
         }
         image[id.index()] = own;
     }
+    progress.finish();
     Swept { reduced, image }
 }

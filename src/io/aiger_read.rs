@@ -223,6 +223,19 @@ pub fn read(
             None => (format!("o{k}"), loc),
         };
         r.check_defined(lit, &kind, loc)?;
+        // A port name is one net: an output may share an input's or a
+        // latch's name only when it is that very signal.
+        let same_net = net
+            .inputs()
+            .get(&name)
+            .or_else(|| net.storage().get(&name).map(|s| &s.output))
+            .map(|&id| id.lit() == lit_of(lit));
+        if same_net == Some(false) {
+            return Err(r.error(
+                loc,
+                format!("output '{name}' has the name of an input or latch but another value (expected a name of its own)"),
+            ));
+        }
         net.add_output(name, lit_of(lit))
             .map_err(|e| r.error(loc, e.to_string()))?;
     }
@@ -636,6 +649,20 @@ impl Cursor<'_> {
                 .map_err(|_| self.error(self.here(), "symbol name is not UTF-8 text"))?;
             if name.is_empty() {
                 return Err(self.error(self.here(), "empty symbol name"));
+            }
+            // The other netlist formats cannot hold a port name with
+            // whitespace or control characters, or BLIF's comment sign.
+            if let Some(bad) = name
+                .chars()
+                .find(|c| c.is_whitespace() || c.is_control() || *c == '#')
+                .or(name.ends_with('\\').then_some('\\'))
+            {
+                return Err(self.error(
+                    loc,
+                    format!(
+                        "symbol name {name:?} contains {bad:?} (expected a name without spaces, control characters or '#', not ending in a backslash)"
+                    ),
+                ));
             }
             let count = table.len();
             let Some(slot) = table.get_mut(index) else {

@@ -49,7 +49,13 @@ pub fn read(text: &str, file: &str, name: &str) -> Result<Network, SourceError> 
         };
         if let Some(bad) = args
             .iter()
-            .find(|a| a.is_empty() || a.contains(|c: char| c.is_whitespace() || "()=".contains(c)))
+            // A backslash would end a BLIF line early when written back.
+            .find(|a| {
+                a.is_empty()
+                    || a.contains(|c: char| {
+                        c.is_whitespace() || c.is_control() || "()=\\".contains(c)
+                    })
+            })
         {
             return Err(flat.error(
                 (line, col_of(rhs) + open as u32 + 1),
@@ -75,7 +81,9 @@ pub fn read(text: &str, file: &str, name: &str) -> Result<Network, SourceError> 
                 ));
             }
             (Some(out), gate) => {
-                if out.is_empty() || out.contains(char::is_whitespace) {
+                if out.is_empty()
+                    || out.contains(|c: char| c.is_whitespace() || c.is_control() || c == '\\')
+                {
                     return Err(flat.error(
                         loc,
                         format!("malformed gate output '{out}' (expected one net name)"),

@@ -14,13 +14,22 @@ use crate::diag::SourceError;
 
 /// The default bound on the one-bit nets of a flattened design (named nets
 /// and intermediate expression values); [`super::ReadOptions::max_nets`]
-/// raises or lowers it.
-pub const DEFAULT_MAX_NETS: u64 = 1 << 23;
+/// raises or lowers it. At 2^20 a design reads in about two CPU-seconds
+/// and a few hundred megabytes; a 256 x 256 array multiplier (11 MB of
+/// BLIF) fits, and larger designs need `--max-nets`.
+pub const DEFAULT_MAX_NETS: u64 = 1 << 20;
 
 /// The widest Verilog expression (in bits) a reader evaluates: the largest
 /// declared range, so that no replication or concatenation grows past what
 /// a declaration may hold.
 pub const MAX_EXPRESSION_WIDTH: u64 = 1 << 20;
+
+/// Port bits are bounded more tightly than nets: a top module may declare
+/// at most the net bound divided by this many port bits (65,536 by
+/// default, enough for a 4096-bit adder's 12,289). Real designs have a few thousand port bits at most, while a
+/// few bytes of Verilog (`input [1048575:0] p;`) can declare millions, and
+/// every port bit costs a name and a place in every writer's port list.
+pub const NETS_PER_PORT_BIT: u64 = 16;
 
 /// The gate input connections a design may have, per allowed net.
 pub const CONNECTIONS_PER_NET: u64 = 4;
@@ -60,9 +69,13 @@ pub(crate) fn check_hierarchy(
     if sizes[top] <= limit {
         return Ok(());
     }
-    // Walk down to the smallest module that is too large.
+    // Walk down to the smallest module that is too large. A hierarchy with
+    // a cycle could lead the walk back to a module it has left: it stops
+    // there instead (the elaborator would report the recursion).
     let mut at = top;
+    let mut walked = vec![false; modules.len()];
     loop {
+        walked[at] = true;
         let mut total = 0u64;
         let mut crossing = None;
         for part in &modules[at].parts {
@@ -78,7 +91,7 @@ pub(crate) fn check_hierarchy(
             return Ok(());
         };
         match part.child {
-            Some(c) if sizes[c] > limit && c != at => at = c,
+            Some(c) if sizes[c] > limit && !walked[c] => at = c,
             _ => {
                 return Err(flat.error(
                     part.loc,

@@ -230,6 +230,16 @@ impl<'a> Lexer<'a> {
                     "empty escaped identifier (expected characters after '\\')",
                 ));
             }
+            // Names are written back to BLIF, where '#' starts a comment
+            // and a trailing backslash continues the line.
+            let name = &self.src[start + 1..self.pos];
+            if name.contains('#') || name.ends_with('\\') || name.contains(|c: char| c.is_control())
+            {
+                return Err(self.error(
+                    loc,
+                    format!("escaped identifier '\\{name}' holds '#', a control character or a trailing backslash (expected a name the netlist formats can all hold)"),
+                ));
+            }
             return Ok(Token {
                 kind: Kind::Escaped,
                 text: &self.src[start + 1..self.pos],

@@ -168,7 +168,30 @@ fn check_sizes(
             }
         })
         .collect();
-    limits::check_hierarchy(flat, &sizes, top, flat.max_nets(), "module")
+    limits::check_hierarchy(flat, &sizes, top, flat.max_nets(), "module")?;
+    // Port bits of the top module (limits::NETS_PER_PORT_BIT).
+    let limit = (flat.max_nets() / limits::NETS_PER_PORT_BIT).max(1);
+    let mut ports: Vec<&Decl> = modules[top]
+        .decls
+        .values()
+        .filter(|d| d.dir.is_some())
+        .collect();
+    ports.sort_by_key(|d| d.loc);
+    let mut bits: u64 = 0;
+    for d in ports {
+        bits = bits.saturating_add(d.range.map_or(1, |(a, b)| a.abs_diff(b) + 1));
+        if bits > limit {
+            return Err(flat.error(
+                d.loc,
+                format!(
+                    "module '{}' declares more than {limit} port bits (expected narrower ports; --max-nets N allows N/{} port bits)",
+                    modules[top].name,
+                    limits::NETS_PER_PORT_BIT
+                ),
+            ));
+        }
+    }
+    Ok(())
 }
 
 /// Where an item starts.

@@ -148,7 +148,7 @@ impl Report {
         let _ = writeln!(s, "verified  {}", self.verified.name());
         let _ = writeln!(s, "seconds");
         for (phase, t) in &self.seconds {
-            let _ = writeln!(s, "  {phase:<8}  {t:>9.4}");
+            let _ = writeln!(s, "  {phase:<12} {t:>9.4}");
         }
         if !self.critical_stages.is_empty() {
             let _ = writeln!(s, "critical path, start first");

@@ -6,10 +6,15 @@
 //! net carries another name becomes an `assign`. Storage elements become
 //! instances of the library's storage cell (pins from the library), or of a
 //! cell named `dff` with pins `d`, `q`, `clk` when the library has none.
+//! A storage element's start value 0 or 1 follows its instance as
+//! `initial q = 1'b0;` on its output net, which the Verilog reader reads back
+//! as the element's initial value (don't-care and unknown start values are
+//! left out, as Verilog has no constant for them that the reader takes).
 
 use super::{Driver, MappedNetlist};
 use crate::io::verilog_identifier as identifier;
 use crate::library::Library;
+use crate::network::InitValue;
 use std::fmt::Write;
 
 fn net_ref(nl: &MappedNetlist, net: u32) -> String {
@@ -89,6 +94,12 @@ pub(super) fn write(nl: &MappedNetlist, lib: &Library) -> String {
             identifier(clk),
             clock
         );
+        let start = match st.init {
+            InitValue::Zero => "1'b0",
+            InitValue::One => "1'b1",
+            InitValue::DontCare | InitValue::Unknown => continue,
+        };
+        let _ = writeln!(s, "  initial {} = {start};", net_ref(nl, st.output));
     }
     for p in &nl.outputs {
         if nl.nets[p.net as usize].name != p.name

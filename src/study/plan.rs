@@ -194,6 +194,9 @@ pub struct PlanLibrary {
     /// What to load: a built-in name, or a file resolved against the plan's
     /// folder when such a file exists.
     pub load: String,
+    /// Line and column (1-based) of the specification in the plan file, for
+    /// messages about the library (0, 0 when not found).
+    pub position: (u32, u32),
 }
 
 /// A parsed, expanded study plan.
@@ -484,9 +487,11 @@ impl Plan {
             } else {
                 spec.clone()
             };
+            let quoted = serde_json::to_string(spec).unwrap_or_default();
             libraries.push(PlanLibrary {
                 spec: spec.clone(),
                 load,
+                position: locate(text, &quoted),
             });
         }
         let mut goals = Vec::new();

@@ -118,23 +118,12 @@ pub fn run_study(
     options: &StudyOptions,
 ) -> Result<StudySummary, StudyError> {
     let jobs = plan.shard_jobs(options.shard);
-    let (results, existing) = ResultsFile::open(results_path)?;
-    if existing.repaired_bytes > 0 {
-        eprintln!(
-            "note: {}: removed an unfinished last line ({} bytes) left by an interrupted run",
-            results_path.display(),
-            existing.repaired_bytes
-        );
-    }
-    let todo: Vec<&super::plan::Job> = jobs
-        .iter()
-        .filter(|j| !existing.keys.contains(&j.plan_key))
-        .collect();
     let mut libraries: HashMap<usize, Library> = HashMap::new();
     for (index, spec) in plan.libraries.iter().enumerate() {
         let lib = load_library(&spec.load).map_err(|err| {
+            let (line, column) = spec.position;
             StudyError::Input(format!(
-                "{}: library '{}': {err}",
+                "{}:{line}:{column}: library '{}': {err}",
                 plan.path.display(),
                 spec.spec
             ))
@@ -149,6 +138,20 @@ pub fn run_study(
             benchmarks.insert(index, network);
         }
     }
+    // The results file is opened (and created) only once the plan's
+    // libraries and generated circuits are known to load.
+    let (results, existing) = ResultsFile::open(results_path)?;
+    if existing.repaired_bytes > 0 {
+        eprintln!(
+            "note: {}: removed an unfinished last line ({} bytes) left by an interrupted run",
+            results_path.display(),
+            existing.repaired_bytes
+        );
+    }
+    let todo: Vec<&super::plan::Job> = jobs
+        .iter()
+        .filter(|j| !existing.keys.contains(&j.plan_key))
+        .collect();
     for job in &todo {
         if let std::collections::hash_map::Entry::Vacant(e) = benchmarks.entry(job.benchmark) {
             let b = &plan.benchmarks[job.benchmark];
