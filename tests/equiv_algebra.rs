@@ -363,6 +363,7 @@ fn single_gate_mutants_are_refuted_with_confirmed_counterexamples() {
     }
     // A mutant may change nothing observable; nearly all must be refuted.
     let Campaign { tried, refuted } = campaign;
+    println!("{refuted} of {tried} mutants refuted");
     assert!(
         refuted * 10 >= tried * 9,
         "only {refuted} of {tried} refuted"
