@@ -81,6 +81,7 @@ pub fn run(args: Args) -> CmdResult {
         spec: args.spec,
         algebra: AlgebraOptions {
             term_limit: args.term_limit,
+            ..AlgebraOptions::default()
         },
         ..EquivOptions::default()
     };

@@ -448,11 +448,22 @@ fn check_by_spec(
     let by_name = opts.ports != PortMatching::ByOrder;
     let outputs_checked = miter.pairs.len();
     let started = Instant::now();
-    let mut sides = Vec::new();
+    let mut sides: Vec<(SpecOutcome, AlgebraStats, &Vec<usize>)> = Vec::new();
     for (net, order) in [(a, &miter.a_inputs), (b, &miter.b_inputs)] {
         let words = algebra::arith_words(net, spec, by_name).map_err(EquivError::BadPortMap)?;
-        let (outcome, algebra_stats) =
-            algebra::prove_against_spec(net, spec, &words, &opts.algebra).map_err(|e| match e {
+        // Once A is proven, a blow-up of B hands over early to sweeping B
+        // against A (B equal to a proven A is proven; a B that differs
+        // gives its counterexample there).
+        let mut limits = opts.algebra.clone();
+        if sides.first().is_some_and(|s| s.0 == SpecOutcome::Proven) {
+            let handover = algebra::HANDOVER_TERMS;
+            limits.term_limit = match limits.term_limit {
+                0 => handover,
+                l => l.min(handover),
+            };
+        }
+        let (outcome, algebra_stats) = algebra::prove_against_spec(net, spec, &words, &limits)
+            .map_err(|e| match e {
                 algebra::AlgebraError::Words(m) => EquivError::BadPortMap(m),
                 algebra::AlgebraError::Internal(m) => EquivError::Internal(m),
             })?;

@@ -24,10 +24,16 @@
 //! of one of its smallest monomials to 1 and all others to 0, and the
 //! remainder evaluates to that monomial's non-zero coefficient. The pattern
 //! is simulated on the network before it is reported.
+//!
+//! Wrong circuits are mostly refuted before rewriting starts: `screen`
+//! simulates the circuit against the specification on corner and random
+//! patterns, and searches longer when the polynomial blows up (a wrong
+//! circuit's remainder can grow to the term limit before it shows).
 
 mod poly;
 mod recover;
 mod reference;
+mod screen;
 pub mod words;
 
 use std::fmt;
@@ -82,6 +88,20 @@ impl FromStr for ArithSpec {
 /// Default of [`AlgebraOptions::term_limit`].
 pub const DEFAULT_TERM_LIMIT: usize = 2_000_000;
 
+/// Default of [`AlgebraOptions::search_at_terms`]: far above the peak of a
+/// correct adder or multiplier whose full adders are recovered.
+pub const DEFAULT_SEARCH_AT_TERMS: usize = 100_000;
+
+/// Term limit of side B of `equiv --spec` once side A is proven: beyond
+/// it, B is proven or refuted by sweeping against A instead (a mapped
+/// netlist whose cells hide some full adders from recovery blows up here
+/// within seconds, while sweeping it against its proven original takes a
+/// fraction of a second).
+pub const HANDOVER_TERMS: usize = 100_000;
+
+/// Seed of the simulation that looks for counterexamples.
+const SCREEN_SEED: u64 = 0x5EED_0017;
+
 /// Monomials at most when rewriting an adder before it is proven by
 /// sweeping against a ripple reference instead (a correct ripple or
 /// carry-select adder stays far below; parallel-prefix adders pass it
@@ -95,12 +115,16 @@ pub struct AlgebraOptions {
     /// polynomial stops the proof as undecided. Bounds memory: each
     /// monomial costs roughly 100 bytes.
     pub term_limit: usize,
+    /// Monomials alive at which rewriting pauses once for a longer
+    /// simulation search for a counterexample (0: never).
+    pub search_at_terms: usize,
 }
 
 impl Default for AlgebraOptions {
     fn default() -> Self {
         AlgebraOptions {
             term_limit: DEFAULT_TERM_LIMIT,
+            search_at_terms: DEFAULT_SEARCH_AT_TERMS,
         }
     }
 }
@@ -136,8 +160,10 @@ pub struct AlgebraStats {
     pub peak_terms: usize,
     /// Monomials left at the end (0 when proven).
     pub remainder_terms: usize,
-    /// How the verdict was reached: `rewriting`, or `sweeping against a
-    /// ripple reference` when rewriting of an adder hit the term limit.
+    /// How the verdict was reached: `rewriting`; `simulation` when a
+    /// simulated pattern refuted the circuit (before or during rewriting);
+    /// or `sweeping against a ripple reference` when rewriting of an adder
+    /// hit the term limit.
     pub method: String,
     /// Seconds spent.
     pub seconds: f64,
@@ -252,35 +278,37 @@ pub fn simulate_against_spec(
     (got, want)
 }
 
-/// Proves that the output word of `net` computes `spec` of its input
-/// words, by backward rewriting. Deterministic; cost roughly linear in the
-/// gates for adders and for array, Wallace and Dadda multipliers whose full
-/// adders are recovered, bounded by `opts.term_limit` otherwise.
-pub fn prove_against_spec(
+/// How one rewriting pass ended.
+enum Pass {
+    /// Every gate eliminated; the remainder's smallest monomial, if any
+    /// (variables are input positions).
+    Finished(Option<Vec<u32>>),
+    /// The polynomial outgrew the limit with this many gates left.
+    Blown(usize),
+}
+
+/// One backward-rewriting pass over `net`, filling the counters of `stats`.
+fn rewrite(
     net: &Network,
     spec: ArithSpec,
     words: &Words,
-    opts: &AlgebraOptions,
-) -> Result<(SpecOutcome, AlgebraStats), AlgebraError> {
-    let started = Instant::now();
+    limit: usize,
+    stats: &mut AlgebraStats,
+) -> Pass {
     let outs = net.combinational_outputs();
     let roots: Vec<_> = words.outputs.iter().map(|&p| outs[p]).collect();
     let rec = recover::recover(net, &roots);
-    let mut stats = AlgebraStats {
-        gates: rec.gates.len(),
-        xor3: rec
-            .gates
-            .iter()
-            .filter(|g| matches!(g, Gate::Xor(v, _) if v.len() == 3))
-            .count(),
-        maj: rec
-            .gates
-            .iter()
-            .filter(|g| matches!(g, Gate::Maj(_)))
-            .count(),
-        ..AlgebraStats::default()
-    };
-    stats.method = "rewriting".into();
+    stats.gates = rec.gates.len();
+    stats.xor3 = rec
+        .gates
+        .iter()
+        .filter(|g| matches!(g, Gate::Xor(v, _) if v.len() == 3))
+        .count();
+    stats.maj = rec
+        .gates
+        .iter()
+        .filter(|g| matches!(g, Gate::Maj(_)))
+        .count();
     let n_vars = rec.inputs + rec.gates.len();
     let is_gate: Vec<bool> = (0..n_vars).map(|v| v >= rec.inputs).collect();
     let mut rewriter = Rewriter::new(roots.len(), is_gate);
@@ -296,6 +324,59 @@ pub fn prove_against_spec(
         }
     }
     subtract_spec(&mut rewriter, spec, words);
+    let progress = Progress::new("algebraic rewriting", rec.gates.len() as u64);
+    for (i, gate) in rec.gates.iter().enumerate().rev() {
+        let var = (rec.inputs + i) as u32;
+        let blown = rewriter
+            .eliminate(var, &gate_polynomial(gate), limit)
+            .is_err();
+        stats.peak_terms = stats.peak_terms.max(rewriter.peak_terms);
+        if blown {
+            progress.finish();
+            return Pass::Blown(i + 1);
+        }
+        progress.advance(1);
+    }
+    progress.finish();
+    let remainder = rewriter.remainder();
+    stats.remainder_terms = remainder.len();
+    Pass::Finished(
+        remainder
+            .keys()
+            .min_by_key(|m| (m.len(), m.to_vec()))
+            .map(|m| m.to_vec()),
+    )
+}
+
+/// Proves that the output word of `net` computes `spec` of its input
+/// words. Deterministic. First simulation against the specification on
+/// corner and random patterns (a wrong circuit is mostly refuted there, in
+/// milliseconds); then backward rewriting, whose cost is roughly linear in
+/// the gates for adders and for array, Wallace and Dadda multipliers whose
+/// full adders are recovered. When the polynomial outgrows
+/// [`AlgebraOptions::search_at_terms`], a longer simulation search looks for
+/// a counterexample, and rewriting starts again, bounded by
+/// `opts.term_limit`.
+pub fn prove_against_spec(
+    net: &Network,
+    spec: ArithSpec,
+    words: &Words,
+    opts: &AlgebraOptions,
+) -> Result<(SpecOutcome, AlgebraStats), AlgebraError> {
+    let started = Instant::now();
+    if let Some(pattern) = screen::search(
+        net,
+        spec,
+        words,
+        screen::ROUNDS_BEFORE_REWRITING,
+        SCREEN_SEED,
+    ) {
+        return refuted_by_simulation(net, spec, words, pattern, started);
+    }
+    let mut stats = AlgebraStats {
+        method: "rewriting".into(),
+        ..AlgebraStats::default()
+    };
     // Prefix adders blow up quickly and have a cheaper route: a small
     // budget before sweeping against the ripple reference.
     let limit = match (spec, opts.term_limit) {
@@ -303,35 +384,44 @@ pub fn prove_against_spec(
         (ArithSpec::Add, l) => l.min(ADDER_TERM_BUDGET),
         (_, l) => l,
     };
-    let progress = Progress::new("algebraic rewriting", rec.gates.len() as u64);
-    for (i, gate) in rec.gates.iter().enumerate().rev() {
-        let var = (rec.inputs + i) as u32;
-        let poly = gate_polynomial(gate);
-        if rewriter.eliminate(var, &poly, limit).is_err() {
-            progress.finish();
-            stats.peak_terms = rewriter.peak_terms;
+    let first_limit = match (limit, opts.search_at_terms) {
+        (l, 0) => l,
+        (0, s) => s,
+        (l, s) => l.min(s),
+    };
+    let mut pass = rewrite(net, spec, words, first_limit, &mut stats);
+    if let Pass::Blown(_) = pass {
+        // A blow-up: most likely a wrong circuit; look harder for a pattern
+        // before rewriting again up to the term limit. (An adder goes on to
+        // sweeping against a ripple reference, which finds any difference.)
+        if spec != ArithSpec::Add {
+            let rounds = screen::rounds_within_budget(net);
+            if let Some(pattern) = screen::search(net, spec, words, rounds, SCREEN_SEED ^ 1) {
+                let (outcome, mut s) = refuted_by_simulation(net, spec, words, pattern, started)?;
+                s.peak_terms = stats.peak_terms;
+                return Ok((outcome, s));
+            }
+        }
+        if first_limit != limit {
+            pass = rewrite(net, spec, words, limit, &mut stats);
+        }
+    }
+    let outcome = match pass {
+        Pass::Blown(gates_left) => {
             let mut outcome = SpecOutcome::Undecided {
                 term_limit: limit,
-                gates_left: i + 1,
+                gates_left,
             };
             if spec == ArithSpec::Add {
                 stats.method = "sweeping against a ripple reference".into();
                 outcome = against_reference(net, spec, words)?.unwrap_or(outcome);
             }
-            stats.seconds = started.elapsed().as_secs_f64();
-            return Ok((outcome, stats));
+            outcome
         }
-        progress.advance(1);
-    }
-    progress.finish();
-    stats.peak_terms = rewriter.peak_terms;
-    let remainder = rewriter.remainder();
-    stats.remainder_terms = remainder.len();
-    let outcome = match remainder.keys().min_by_key(|m| (m.len(), m.to_vec())) {
-        None => SpecOutcome::Proven,
-        Some(smallest) => {
-            let mut pattern = vec![false; rec.inputs];
-            for &v in smallest.iter() {
+        Pass::Finished(None) => SpecOutcome::Proven,
+        Pass::Finished(Some(smallest)) => {
+            let mut pattern = vec![false; net.combinational_inputs().len()];
+            for &v in &smallest {
                 pattern[v as usize] = true;
             }
             let (got, want) = simulate_against_spec(net, spec, words, &pattern);
@@ -346,6 +436,30 @@ pub fn prove_against_spec(
     };
     stats.seconds = started.elapsed().as_secs_f64();
     Ok((outcome, stats))
+}
+
+/// The outcome for a pattern found by simulation, after confirming it on
+/// big integers.
+fn refuted_by_simulation(
+    net: &Network,
+    spec: ArithSpec,
+    words: &Words,
+    pattern: Vec<bool>,
+    started: Instant,
+) -> Result<(SpecOutcome, AlgebraStats), AlgebraError> {
+    let (got, want) = simulate_against_spec(net, spec, words, &pattern);
+    if got == want {
+        return Err(AlgebraError::Internal(format!(
+            "the simulated counterexample for {} does not replay on integers",
+            net.name()
+        )));
+    }
+    let stats = AlgebraStats {
+        method: "simulation".into(),
+        seconds: started.elapsed().as_secs_f64(),
+        ..AlgebraStats::default()
+    };
+    Ok((SpecOutcome::Refuted(pattern), stats))
 }
 
 /// Proves `net` against a ripple reference built from the specification
