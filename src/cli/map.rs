@@ -146,8 +146,9 @@ pub fn run(args: Args) -> CmdResult {
         optimize: args.restructure || args.old_optimize,
         ..MapOptions::default()
     };
-    // Exact cuts and restructuring can take minutes on a new library.
-    let progress = if opts.optimum || opts.optimize {
+    // Exact cuts, restructuring and margin-aware mapping (rounds of level
+    // analysis) can take minutes.
+    let progress = if opts.optimum || opts.optimize || args.min_margin.is_some() {
         super::progress::spinner(&format!("map: {} on {}", args.netlist.display(), lib.name))
     } else {
         None
