@@ -87,8 +87,18 @@ pub fn run(args: Args) -> CmdResult {
         patterns: args.patterns,
         seed: args.seed,
     };
-    let report = analyze_levels(&netlist, &lib, &model, &options)
-        .map_err(|e| CliError::Input(format!("{}: {e}", args.netlist.display())))?;
+    // Random patterns and the worst-pattern search can take minutes on a
+    // large netlist; a spinner on a terminal only (progress::spinner).
+    let progress = super::progress::spinner(&format!(
+        "levels: {} ({} cells)",
+        args.netlist.display(),
+        netlist.instances.len()
+    ));
+    let report = analyze_levels(&netlist, &lib, &model, &options);
+    if let Some(p) = progress {
+        p.finish_and_clear();
+    }
+    let report = report.map_err(|e| CliError::Input(format!("{}: {e}", args.netlist.display())))?;
     let min_margin_v = args.min_margin / 1e3;
     let holds = report
         .worst_margin_v()

@@ -5,7 +5,7 @@
 //! says so and exits 70.
 
 use super::common::{load_library, ReportFormat};
-use super::{CliError, CmdResult, EXIT_OK};
+use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK};
 use crate::cli::netlist_args::NetlistArgs;
 use crate::mapper::{map_detailed, Goal, MapOptions};
 use crate::netlist::{analyze_timing, verify, Report, VerifyMode};
@@ -90,6 +90,12 @@ pub struct Args {
     /// margin, the logic failures and the static power from the voltages.
     #[arg(long)]
     pub levels: bool,
+    /// Require every net to keep this noise margin, millivolts
+    /// (characterised libraries only): cells whose own margins are lower
+    /// are left out, restoring stages are added where levels degrade, and
+    /// the command exits 1 naming the nets that still fail.
+    #[arg(long, value_name = "MV")]
+    pub min_margin: Option<f64>,
     /// Report format.
     #[arg(long, value_enum, default_value = "text")]
     pub format: ReportFormat,
@@ -140,20 +146,34 @@ pub fn run(args: Args) -> CmdResult {
         optimize: args.restructure || args.old_optimize,
         ..MapOptions::default()
     };
-    // Exact cuts and restructuring can take minutes on a new library.
-    let progress = if opts.optimum || opts.optimize {
+    // Exact cuts, restructuring and margin-aware mapping (rounds of level
+    // analysis) can take minutes.
+    let progress = if opts.optimum || opts.optimize || args.min_margin.is_some() {
         super::progress::spinner(&format!("map: {} on {}", args.netlist.display(), lib.name))
     } else {
         None
     };
-    let outcome = map_detailed(&net, &lib, &opts);
-    if let Some(p) = progress {
-        p.finish_and_clear();
-    }
-    let outcome = outcome.map_err(|e| match e {
-        crate::mapper::MapError::InvalidOptions(m) => CliError::Input(m),
-        crate::mapper::MapError::Unmappable(m) => CliError::Input(m),
-    })?;
+    let (outcome, margin) = match args.min_margin {
+        None => {
+            let outcome = map_detailed(&net, &lib, &opts);
+            if let Some(p) = progress {
+                p.finish_and_clear();
+            }
+            let outcome = outcome.map_err(|e| match e {
+                crate::mapper::MapError::InvalidOptions(m) => CliError::Input(m),
+                crate::mapper::MapError::Unmappable(m) => CliError::Input(m),
+            })?;
+            (outcome, None)
+        }
+        Some(mv) => {
+            let m = super::margin::map_with_margin(&net, &lib, &args.lib, &opts, mv);
+            if let Some(p) = progress {
+                p.finish_and_clear();
+            }
+            let m = m?;
+            (m.outcome.clone(), Some(m))
+        }
+    };
     let mut seconds = indexmap::IndexMap::new();
     seconds.insert("read".to_string(), read_seconds);
     for (k, v) in &outcome.seconds {
@@ -240,7 +260,9 @@ pub fn run(args: Args) -> CmdResult {
         crate::study::mapped_energy(&netlist, &lib, &crate::study::power::Stimulus::default())
             .map_err(|e| CliError::Internal(format!("cannot estimate energy: {e}")))?;
     seconds.insert("energy".to_string(), t.elapsed().as_secs_f64());
-    let levels = if args.levels {
+    let levels = if let Some(m) = &margin {
+        Some(m.levels.clone())
+    } else if args.levels {
         let t = Instant::now();
         let report = super::levels::analyze_mapped(
             &netlist,
@@ -269,6 +291,9 @@ pub fn run(args: Args) -> CmdResult {
                     })?;
                     m.insert("levels".into(), v);
                 }
+                if let Some(margin) = &margin {
+                    m.insert("margin".into(), super::margin::json(margin, &lib));
+                }
                 if let Some(serde_json::Value::Object(units)) = m.get_mut("units") {
                     units.insert("energy".into(), lib.units.energy.clone().into());
                     units.insert("power".into(), lib.units.power.clone().into());
@@ -286,6 +311,9 @@ pub fn run(args: Args) -> CmdResult {
             if let Some(levels) = &levels {
                 energy_lines += &super::levels::summary_line(levels);
             }
+            if let Some(margin) = &margin {
+                energy_lines += &super::margin::text(margin, &lib);
+            }
             let text = report.to_text();
             match text.find("verified  ") {
                 Some(at) => out!("{}{energy_lines}{}", &text[..at], &text[at..]),
@@ -293,5 +321,16 @@ pub fn run(args: Args) -> CmdResult {
             }
         }
     }
-    Ok(EXIT_OK)
+    match &margin {
+        Some(m) if !m.holds => {
+            eprintln!(
+                "ribbonmap: {} nets keep less than {} mV: {}",
+                m.failing_nets.len(),
+                m.min_margin_v * 1e3,
+                super::margin::list(&m.failing_nets)
+            );
+            Ok(EXIT_NEGATIVE)
+        }
+        _ => Ok(EXIT_OK),
+    }
 }

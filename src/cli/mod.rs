@@ -37,6 +37,7 @@ mod inspect;
 mod levels;
 mod library;
 mod map;
+mod margin;
 pub mod netlist_args;
 mod progress;
 mod spice;

@@ -235,7 +235,7 @@ pub fn net_voltages(
 }
 
 /// Checks that the netlist can be analysed on `model`.
-fn check_netlist(netlist: &MappedNetlist, model: &LevelModel) -> Result<(), String> {
+pub(super) fn check_netlist(netlist: &MappedNetlist, model: &LevelModel) -> Result<(), String> {
     if !netlist.storage.is_empty() {
         return Err(format!(
             "'{}' has {} storage elements: level analysis covers combinational netlists only",
@@ -258,7 +258,7 @@ fn check_netlist(netlist: &MappedNetlist, model: &LevelModel) -> Result<(), Stri
 }
 
 /// Fills `volts` for `pattern` and returns the total static current.
-fn evaluate(
+pub(super) fn evaluate(
     netlist: &MappedNetlist,
     model: &LevelModel,
     pattern: &[bool],
@@ -293,7 +293,12 @@ fn evaluate(
 }
 
 /// Boolean value of every net for `pattern` (the cells' truth tables).
-fn evaluate_logic(netlist: &MappedNetlist, library: &Library, pattern: &[bool], out: &mut [bool]) {
+pub(super) fn evaluate_logic(
+    netlist: &MappedNetlist,
+    library: &Library,
+    pattern: &[bool],
+    out: &mut [bool],
+) {
     for (id, net) in netlist.nets.iter().enumerate() {
         out[id] = match net.driver {
             Driver::Input(i) => pattern[i as usize],
@@ -313,17 +318,20 @@ fn evaluate_logic(netlist: &MappedNetlist, library: &Library, pattern: &[bool], 
 
 /// The thresholds a net is held to: (VIL, VIH, VM for a 0, VM for a 1).
 #[derive(Clone, Copy, Debug)]
-struct Thresholds {
-    vil_v: f64,
-    vih_v: f64,
+pub(super) struct Thresholds {
+    pub(super) vil_v: f64,
+    pub(super) vih_v: f64,
     /// Highest switching threshold of the receivers: a 0 must stay below it.
-    vm_high_v: f64,
+    pub(super) vm_high_v: f64,
     /// Lowest switching threshold: a 1 must stay above it.
-    vm_low_v: f64,
+    pub(super) vm_low_v: f64,
 }
 
 /// Per net the thresholds of its receivers, `None` for nets nobody reads.
-fn net_thresholds(netlist: &MappedNetlist, model: &LevelModel) -> Vec<Option<Thresholds>> {
+pub(super) fn net_thresholds(
+    netlist: &MappedNetlist,
+    model: &LevelModel,
+) -> Vec<Option<Thresholds>> {
     let mut out: Vec<Option<Thresholds>> = vec![None; netlist.nets.len()];
     let mut merge = |net: NetId, t: Thresholds| {
         let slot = &mut out[net as usize];
@@ -369,7 +377,7 @@ fn net_thresholds(netlist: &MappedNetlist, model: &LevelModel) -> Vec<Option<Thr
 impl Thresholds {
     /// Margin (volts) of a net at `v` whose Boolean value is `value`, and
     /// whether it reads as the wrong value.
-    fn margin(&self, v: f64, value: bool) -> (f64, bool) {
+    pub(super) fn margin(&self, v: f64, value: bool) -> (f64, bool) {
         if value {
             (v - self.vih_v, v <= self.vm_low_v)
         } else {

@@ -17,6 +17,7 @@ pub mod characterize;
 pub mod kit;
 pub mod levels;
 pub mod library_write;
+pub mod margin;
 pub mod report;
 pub mod spice;
 pub mod table;

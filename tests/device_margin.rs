@@ -1,0 +1,408 @@
+//! Margin-aware mapping (`map --min-margin`) checked against outside
+//! references.
+//!
+//! - ngspice (Debian's `ngspice` package, a circuit simulator from outside
+//!   the project): on the weak demo kit, the plainly mapped 32-input parity
+//!   chain reads as the wrong value on its worst pattern in ngspice's DC
+//!   operating point too; and the 16-bit ripple adder mapped with a 20 mV
+//!   margin keeps every net's margin in ngspice on its worst pattern (every
+//!   net's voltage within 0.1 mV of the level analysis). When ngspice is
+//!   missing these checks print a line saying so and are skipped.
+//! - Equivalence proof: every margin-aware result, restoring stages
+//!   included, is proven equal to its input netlist (`proof::prove`).
+//! - ngspice transient: the 50 % delay from a carry-in step to the last sum
+//!   of a mapped 4-bit ripple adder against the tool's static timing of
+//!   the paths from the carry in (ignored: the model is 30 % low, see the
+//!   test).
+//! - The level analysis itself is checked against ngspice in
+//!   tests/device_levels.rs; here it is rerun with another random seed on
+//!   the results, independently of the run that placed the stages.
+
+use ribbonmap::device::levels::{analyze_levels, net_voltages, LevelModel, LevelOptions};
+use ribbonmap::device::library_write::library_text;
+use ribbonmap::device::margin::map_with_margin;
+use ribbonmap::device::spice::{load_models, node, write_deck, DeckModels, Stimulus};
+use ribbonmap::device::{characterize, read_kit};
+use ribbonmap::io::{read_netlist_str, NetlistFormat, ReadOptions};
+use ribbonmap::library::electrical::{read_electrical, ElectricalData};
+use ribbonmap::library::Library;
+use ribbonmap::mapper::{map, MapOptions};
+use ribbonmap::netlist::{Driver, MappedNetlist, Verified};
+use ribbonmap::network::Network;
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+fn ngspice_present() -> bool {
+    let found = Command::new("ngspice").arg("--version").output().is_ok();
+    if !found {
+        println!("SKIPPED: ngspice is not installed (apt-get install -y ngspice); the SPICE check did not run");
+    }
+    found
+}
+
+struct Setup {
+    _dir: tempfile::TempDir,
+    dir: PathBuf,
+    lib: Library,
+    models: DeckModels,
+    data: ElectricalData,
+    levels: LevelModel,
+}
+
+/// Characterises the demo kit `kit` into a temporary folder.
+fn setup(kit: &str) -> Setup {
+    let dir = tempfile::tempdir().unwrap();
+    std::env::set_var("RIBBONMAP_CACHE_DIR", dir.path());
+    let path = dir.path().to_path_buf();
+    let kit = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("libraries/devices/demo")
+        .join(kit);
+    let ch = characterize(read_kit(&kit).unwrap()).unwrap();
+    let text = library_text(&ch, &path);
+    let lib = Library::from_json_str(&text, "demo-lib.json").unwrap();
+    let data = read_electrical(&text);
+    let models = load_models(&lib, &data, &path, "demo-lib.json").unwrap();
+    let levels = LevelModel::new(&lib, &models, &data);
+    Setup {
+        _dir: dir,
+        dir: path,
+        lib,
+        models,
+        data,
+        levels,
+    }
+}
+
+fn blif(text: &str, name: &str) -> Network {
+    read_netlist_str(text, name, NetlistFormat::Blif, &ReadOptions::default()).unwrap()
+}
+
+/// A 32-input parity chain of two-input XORs as BLIF.
+fn parity_chain_blif() -> String {
+    let mut t = String::from(".model parity32_chain\n.inputs");
+    for k in 0..32 {
+        t += &format!(" x{k}");
+    }
+    t += "\n.outputs y\n";
+    let mut prev = "x0".to_string();
+    for k in 1..32 {
+        let out = if k == 31 {
+            "y".to_string()
+        } else {
+            format!("p{k}")
+        };
+        t += &format!(".names {prev} x{k} {out}\n10 1\n01 1\n");
+        prev = out;
+    }
+    t + ".end\n"
+}
+
+/// An n-bit ripple-carry adder as BLIF.
+fn ripple_adder_blif(bits: usize) -> String {
+    let mut t = format!(".model add{bits}\n.inputs");
+    for k in 0..bits {
+        t += &format!(" a{k} b{k}");
+    }
+    t += " c0\n.outputs";
+    for k in 0..bits {
+        t += &format!(" s{k}");
+    }
+    t += &format!(" c{bits}\n");
+    for k in 0..bits {
+        t += &format!(".names a{k} b{k} c{k} s{k}\n100 1\n010 1\n001 1\n111 1\n");
+        t += &format!(".names a{k} b{k} c{k} c{}\n11- 1\n1-1 1\n-11 1\n", k + 1);
+    }
+    t + ".end\n"
+}
+
+fn options(seed: u64) -> LevelOptions {
+    LevelOptions {
+        patterns: 4096,
+        seed,
+    }
+}
+
+/// The value printed after `name` on a line of ngspice's operating point.
+fn op_value(output: &str, name: &str) -> f64 {
+    output
+        .lines()
+        .find_map(|l| {
+            let mut it = l.split_whitespace();
+            (it.next() == Some(name)).then(|| it.next()?.parse::<f64>().ok())?
+        })
+        .unwrap_or_else(|| panic!("{name} not in ngspice output:\n{output}"))
+}
+
+/// ngspice's DC operating point of `netlist` on `bits`, per net id (nets
+/// tied to constants left out).
+fn ngspice_op(s: &Setup, netlist: &MappedNetlist, bits: &[bool], stem: &str) -> Vec<(usize, f64)> {
+    let deck = write_deck(
+        netlist,
+        &s.lib,
+        &s.models,
+        &Stimulus::Pattern(bits.to_vec()),
+        stem,
+        &[],
+    )
+    .unwrap();
+    let path = s.dir.join(format!("{stem}.cir"));
+    deck.save(&path).unwrap();
+    let out = Command::new("ngspice")
+        .arg("-b")
+        .arg(&path)
+        .current_dir(&s.dir)
+        .output()
+        .expect("ngspice runs");
+    let output =
+        String::from_utf8_lossy(&out.stdout).to_string() + &String::from_utf8_lossy(&out.stderr);
+    netlist
+        .nets
+        .iter()
+        .enumerate()
+        .filter(|(_, n)| !matches!(n.driver, Driver::Constant(_)))
+        .map(|(id, _)| (id, op_value(&output, &node(id as u32))))
+        .collect()
+}
+
+#[test]
+fn weak_kit_parity_chain_fails_plainly_and_holds_20_mv_when_margin_aware_ngspice() {
+    let s = setup("demo-weak.json");
+    let net = blif(&parity_chain_blif(), "parity32_chain.blif");
+    let plain = map(&net, &s.lib, &MapOptions::default()).unwrap();
+    let xor3w = s.lib.cell_index("xor3w").unwrap() as u32;
+    assert!(plain.instances.iter().any(|i| i.cell == xor3w));
+    let report = analyze_levels(&plain, &s.lib, &s.levels, &options(7)).unwrap();
+    println!(
+        "parity32 chain, plain: {} cells, worst margin {:.3} mV, {} net-pattern failures",
+        plain.instances.len(),
+        report.worst_margin_v().unwrap() * 1e3,
+        report.logic_failures
+    );
+    assert!(report.logic_failures > 0);
+    // ngspice confirms a failure on the worst pattern of a failing net.
+    if ngspice_present() {
+        let failing = report.nets.iter().find(|n| n.failures > 0).unwrap();
+        let bits: Vec<bool> = failing.worst_pattern.chars().map(|c| c == '1').collect();
+        let id = plain
+            .nets
+            .iter()
+            .position(|n| n.name == failing.net)
+            .unwrap();
+        let spice = ngspice_op(&s, &plain, &bits, "parity_plain")
+            .into_iter()
+            .find(|&(n, _)| n == id)
+            .unwrap()
+            .1;
+        println!(
+            "  ngspice: net {} should be {}, levels {:.6} V, ngspice {:.6} V",
+            failing.net,
+            u8::from(failing.worst_value),
+            failing.worst_voltage_v,
+            spice
+        );
+        assert!((spice - failing.worst_voltage_v).abs() < 1e-4);
+        // Wrong side of the switching threshold of its receiver (Vdd / 2 =
+        // 0.1 V for a primary output, the cells' VM about 0.1 V).
+        assert_ne!(spice > 0.1, failing.worst_value);
+    }
+    // At 20 mV no buffer can read xor3w's output (VOH 0.138 V against the
+    // buffer's VIH 0.123 V: 14.5 mV) with the margin, so xor3w is left out
+    // and the circuit remapped; at 10 mV buffers restore the chain.
+    for (mv, stages) in [(20.0, false), (10.0, true)] {
+        let m = map_with_margin(
+            &net,
+            &s.lib,
+            &s.levels,
+            &s.data,
+            &MapOptions::default(),
+            mv / 1e3,
+            &options(7),
+        )
+        .unwrap();
+        let again = analyze_levels(&m.outcome.netlist, &s.lib, &s.levels, &options(99)).unwrap();
+        println!(
+            "  --min-margin {mv}: {} cells, {} restoring cells (+{} nm2), left out {:?}, worst {:.3} mV (seed 99: {:.3} mV)",
+            m.outcome.netlist.instances.len(),
+            m.restoring_cells,
+            m.restoring_area,
+            m.left_out.iter().map(|l| l.cell.as_str()).collect::<Vec<_>>(),
+            m.levels.worst_margin_v().unwrap() * 1e3,
+            again.worst_margin_v().unwrap() * 1e3
+        );
+        assert!(m.holds, "{:?}", m.failing_nets);
+        assert_eq!(again.logic_failures, 0);
+        assert!(again.worst_margin_v().unwrap() >= mv / 1e3);
+        assert_eq!(m.restoring_cells > 0, stages);
+        let (verified, _) =
+            ribbonmap::proof::prove(&net, &m.outcome.netlist, &s.lib, &m.outcome.witness).unwrap();
+        assert_eq!(verified, Verified::Proven);
+    }
+}
+
+#[test]
+fn weak_kit_ripple_adder_holds_20_mv_in_levels_and_ngspice() {
+    let s = setup("demo-weak.json");
+    let net = blif(&ripple_adder_blif(16), "add16.blif");
+    let plain = map(&net, &s.lib, &MapOptions::default()).unwrap();
+    let report = analyze_levels(&plain, &s.lib, &s.levels, &options(3)).unwrap();
+    let plain_worst = report.worst_margin_v().unwrap();
+    println!(
+        "add16 ripple, plain: {} cells, worst margin {:.3} mV, {} net-pattern failures",
+        plain.instances.len(),
+        plain_worst * 1e3,
+        report.logic_failures
+    );
+    assert!(plain_worst < 0.020);
+    for mv in [10.0, 20.0] {
+        let m = map_with_margin(
+            &net,
+            &s.lib,
+            &s.levels,
+            &s.data,
+            &MapOptions::default(),
+            mv / 1e3,
+            &options(3),
+        )
+        .unwrap();
+        let netlist = &m.outcome.netlist;
+        let again = analyze_levels(netlist, &s.lib, &s.levels, &options(11)).unwrap();
+        let worst = again.worst_margin_v().unwrap();
+        println!(
+            "  --min-margin {mv}: {} cells ({} restoring, +{} nm2, delay {:.3} -> {:.3} ps, static {:.1} -> {:.1} nW), worst {:.3} mV",
+            netlist.instances.len(),
+            m.restoring_cells,
+            m.restoring_area,
+            m.delay_before,
+            m.delay_after,
+            m.static_before_nw,
+            m.static_after_nw,
+            worst * 1e3
+        );
+        assert!(m.holds && worst >= mv / 1e3, "{:?}", m.failing_nets);
+        let (verified, _) =
+            ribbonmap::proof::prove(&net, netlist, &s.lib, &m.outcome.witness).unwrap();
+        assert_eq!(verified, Verified::Proven);
+        if mv == 20.0 && ngspice_present() {
+            // Every net on the result's worst pattern, in ngspice.
+            let w = &again.nets[0];
+            let bits: Vec<bool> = w.worst_pattern.chars().map(|c| c == '1').collect();
+            let (volts, _) = net_voltages(netlist, &s.levels, &bits).unwrap();
+            let mut max_dv: f64 = 0.0;
+            for (id, spice) in ngspice_op(&s, netlist, &bits, "add16_m20") {
+                max_dv = max_dv.max((spice - volts[id]).abs());
+            }
+            let id = netlist.nets.iter().position(|n| n.name == w.net).unwrap();
+            let spice = ngspice_op(&s, netlist, &bits, "add16_m20_w")
+                .into_iter()
+                .find(|&(n, _)| n == id)
+                .unwrap()
+                .1;
+            let spice_margin = if w.worst_value {
+                spice - w.vih_v
+            } else {
+                w.vil_v - spice
+            };
+            println!(
+                "  ngspice on the worst pattern: net {} margin {:.3} mV, max |dV| over all nets {max_dv:.3e} V",
+                w.net,
+                spice_margin * 1e3
+            );
+            assert!(max_dv < 1e-4);
+            assert!(spice_margin >= 0.020);
+        }
+    }
+}
+
+/// The tool's static timing restricted to paths from net `from`: per net
+/// the latest arrival over those paths (cell delay at the net's load, the
+/// library's RC model), `None` for nets not reached.
+fn arrival_from(netlist: &MappedNetlist, lib: &Library, from: usize) -> Vec<Option<f64>> {
+    let timing = ribbonmap::netlist::analyze_timing(netlist, lib);
+    let mut arrival = vec![None; netlist.nets.len()];
+    arrival[from] = Some(0.0);
+    for inst in &netlist.instances {
+        let latest = inst
+            .inputs
+            .iter()
+            .filter_map(|&n| arrival[n as usize])
+            .fold(None, |m: Option<f64>, a| Some(m.map_or(a, |m| m.max(a))));
+        if let Some(a) = latest {
+            let cell = &lib.cells[inst.cell as usize];
+            arrival[inst.output as usize] =
+                Some(a + cell.delay_for_load(timing.load[inst.output as usize]));
+        }
+    }
+    arrival
+}
+
+#[test]
+#[ignore = "known gap of issue 15: the library's RC delay model (t50 = ln2 C / (Gu + Gd) at a step input) ignores input slew, so static timing gives 17.7 ps where ngspice's transient gives 25.4 ps on this carry chain (30 % low); run with --ignored to measure"]
+fn ripple_adder_carry_path_delay_matches_ngspice_transient_within_15_percent_ngspice() {
+    if !ngspice_present() {
+        return;
+    }
+    let s = setup("demo.json");
+    let net = blif(&ripple_adder_blif(4), "add4.blif");
+    let netlist = map(&net, &s.lib, &MapOptions::default()).unwrap();
+    // Inputs a0 b0 a1 b1 a2 b2 a3 b3 c0: a = 1111, b = 0000 makes every
+    // bit propagate, so the carry-in step ripples to the last sum, which
+    // falls (s3 = a3 ^ b3 ^ c3 goes from 1 to 0).
+    let from: Vec<bool> = (0..9).map(|k| k < 8 && k % 2 == 0).collect();
+    let mut to = from.clone();
+    to[8] = true;
+    let cin = netlist.inputs[8].net;
+    let s3 = netlist.outputs.iter().find(|p| p.name == "s3").unwrap().net;
+    let model = arrival_from(&netlist, &s.lib, cin as usize)[s3 as usize]
+        .expect("the last sum depends on the carry in");
+    let mid = (s.models.logic_low_v + s.models.logic_high_v) / 2.0;
+    let measure = format!(
+        ".measure tran t50 trig v({}) val={mid} cross=1 targ v({}) val={} cross=1",
+        node(cin),
+        node(s3),
+        s.models.supply_v / 2.0
+    );
+    let deck = write_deck(
+        &netlist,
+        &s.lib,
+        &s.models,
+        &Stimulus::Step {
+            from,
+            to,
+            step_ps: 5.0,
+            ramp_ps: 0.01,
+            stop_ps: 5.0 + 10.0 * model,
+        },
+        "add4_tran",
+        &[measure],
+    )
+    .unwrap();
+    let path = s.dir.join("add4_tran.cir");
+    deck.save(&path).unwrap();
+    let out = Command::new("ngspice")
+        .arg("-b")
+        .arg(&path)
+        .current_dir(&s.dir)
+        .output()
+        .expect("ngspice runs");
+    let output =
+        String::from_utf8_lossy(&out.stdout).to_string() + &String::from_utf8_lossy(&out.stderr);
+    let t50 = output
+        .lines()
+        .find_map(|l| {
+            let rest = l
+                .trim()
+                .strip_prefix("t50")?
+                .trim_start()
+                .strip_prefix('=')?;
+            rest.split_whitespace().next()?.parse::<f64>().ok()
+        })
+        .unwrap_or_else(|| panic!("no t50 in ngspice output:\n{output}"))
+        * 1e12;
+    let error = (model - t50).abs() / t50;
+    println!(
+        "4-bit ripple adder ({} cells), carry-in step to s3: ngspice t50 {t50:.3} ps, static timing {model:.3} ps, error {:.1} %",
+        netlist.instances.len(),
+        error * 100.0
+    );
+    assert!(error <= 0.15);
+}
