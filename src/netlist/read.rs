@@ -80,8 +80,7 @@ pub fn read_mapped_verilog(
             None => return Err(err(loc, format!("port '{name}' has no direction"))),
         }
     }
-    // Cell instances: (cell index, name, input nets, output net, location).
-    let mut cells: Vec<(u32, String, Vec<u32>, u32, (u32, u32))> = Vec::new();
+    let mut cells: Vec<ReadInstance> = Vec::new();
     let mut aliases: FxHashMap<&str, u32> = FxHashMap::default();
     for item in &module.items {
         match item {
@@ -276,6 +275,10 @@ pub fn read_mapped_verilog(
     }
     Ok(b.nl)
 }
+
+/// A cell instance as read: cell index, name, input nets, output net, and
+/// where it is in the file.
+type ReadInstance = (u32, String, Vec<u32>, u32, (u32, u32));
 
 /// Nets by name while reading.
 struct Builder {

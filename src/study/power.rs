@@ -548,9 +548,9 @@ pub fn energy_from_activity(
     let mut leakage = 0.0;
     let mut total_toggles = 0;
     let loads = circuit.output_loads(library);
-    for g in 0..circuit.gate_count() {
+    for (g, load) in loads.iter().enumerate() {
         let cell = &library.cells[circuit.cells[g] as usize];
-        let per_toggle = cell.switch_energy + cell.switch_energy_per_load * loads[g];
+        let per_toggle = cell.switch_energy + cell.switch_energy_per_load * load;
         switched += activity.toggles[g] as f64 * per_toggle;
         total_toggles += activity.toggles[g];
         leakage += match &cell.leakage {
