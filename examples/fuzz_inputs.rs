@@ -1,7 +1,8 @@
 //! A mutation fuzzer for every reader of user input, on stable Rust.
 //!
 //! Each reader (Verilog, BLIF, BENCH, AIGER, library JSON, study plans,
-//! result lines) gets a corpus of seed files from the repository and a few written
+//! result lines, conductance tables in CSV and JSON) gets a corpus of seed
+//! files from the repository and a few written
 //! here; every fuzz input is a seed changed by one to four random mutations
 //! (byte flips, insertions, deletions, duplicated or repeated ranges,
 //! format keywords, unusual numbers, splices of two seeds). The reader runs
@@ -28,6 +29,8 @@
 //! Defaults: 100,000 inputs per reader, seed 1, all readers, 5 s and
 //! 500 MB. The same seed gives the same inputs. Runs on one core.
 
+use ribbonmap::device::table_csv::parse_csv_table;
+use ribbonmap::device::table_json::parse_json_table;
 use ribbonmap::io::{
     read_netlist, read_netlist_bytes, read_netlist_str, write_aiger, write_blif, NetlistFormat,
     ReadOptions,
@@ -124,9 +127,11 @@ enum Reader {
     Library,
     Plan,
     Results,
+    TableCsv,
+    TableJson,
 }
 
-const READERS: [Reader; 7] = [
+const READERS: [Reader; 9] = [
     Reader::Verilog,
     Reader::Blif,
     Reader::Bench,
@@ -134,6 +139,8 @@ const READERS: [Reader; 7] = [
     Reader::Library,
     Reader::Plan,
     Reader::Results,
+    Reader::TableCsv,
+    Reader::TableJson,
 ];
 
 impl Reader {
@@ -146,6 +153,8 @@ impl Reader {
             Reader::Library => "library",
             Reader::Plan => "plan",
             Reader::Results => "results",
+            Reader::TableCsv => "table-csv",
+            Reader::TableJson => "table-json",
         }
     }
 
@@ -313,6 +322,32 @@ impl Reader {
                 "\\u0000",
             ],
             Reader::Results => JSON,
+            Reader::TableCsv => &[
+                ",", "\n", "#", "g[uS]", "g[G0]", "g[S]", "[", "]", "0.2", "0.1", "0", "-0",
+                "1e-300", "1e308", "NaN", "inf", "a", "b", "c",
+            ],
+            Reader::TableJson => &[
+                "{",
+                "}",
+                "[",
+                "]",
+                ":",
+                ",",
+                "\"",
+                "null",
+                "1e308",
+                "-1",
+                "0",
+                "0.2",
+                "\"ribbonmap-conductance/1\"",
+                "\"axes\":",
+                "\"values\":",
+                "\"unit\":",
+                "\"uS\"",
+                "\"G0\"",
+                "\"name\":",
+                "\"volts\":",
+            ],
         }
     }
 }
@@ -412,6 +447,18 @@ fn seeds(reader: Reader, root: &Path) -> Vec<Vec<u8>> {
               "input_probability": 0.25}}"#,
                 r#"{"benchmarks": ["/abs/none.blif"], "libraries": ["cmos-le"]}"#,
             ]);
+        }
+        Reader::TableCsv => {
+            add_dir("libraries/devices/demo/tables", "csv", 65536);
+            add_dir("tests/data/bad", "csv", 8192);
+            written.extend([
+                "# an invented table\na,b,g[uS]\n0,0,1\n0,0.2,2\n0.2,0,3\n0.2,0.2,4\n",
+                "a,g[G0]\n0,0.5\n0.1,0.25\n0.2,0.001\n",
+            ]);
+        }
+        Reader::TableJson => {
+            add_dir("libraries/devices/demo/tables", "json", 65536);
+            add_dir("tests/data/bad", "json", 8192);
         }
         Reader::Results => {
             written.extend([
@@ -571,6 +618,31 @@ fn run_reader(reader: Reader, bytes: &[u8], plan_dir: &Path, library: &Library) 
         Reader::Plan => {
             if let Ok(plan) = Plan::parse(&text, &plan_dir.join("plan.json")) {
                 let _ = plan.jobs();
+            }
+        }
+        Reader::TableCsv | Reader::TableJson => {
+            let table = if reader == Reader::TableCsv {
+                parse_csv_table(&text, "fuzz.csv")
+            } else {
+                parse_json_table(&text, "fuzz.json")
+            };
+            if let Ok(table) = table {
+                // What was read must interpolate anywhere, in and out of
+                // the grid.
+                let n = table.arity();
+                let spans: Vec<(f64, f64)> = (0..n).map(|k| table.span(k)).collect();
+                for corner in 0..1u32 << n.min(6) {
+                    let at: Vec<f64> = spans
+                        .iter()
+                        .enumerate()
+                        .map(|(k, &(lo, hi))| if corner >> k & 1 == 1 { hi } else { lo })
+                        .collect();
+                    let _ = table.conductance(&at);
+                }
+                let middle: Vec<f64> = spans.iter().map(|&(lo, hi)| 0.5 * (lo + hi)).collect();
+                let outside: Vec<f64> = spans.iter().map(|&(lo, _)| lo - 1.0).collect();
+                let _ = table.conductance(&middle);
+                let _ = table.conductance(&outside);
             }
         }
         Reader::Results => {

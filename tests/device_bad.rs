@@ -118,6 +118,67 @@ fn negative_value_in_a_json_table() {
     expect(&stderr, &dir.join("up.json"), 3, "negative");
 }
 
+/// A JSON pull-up table for the one-input cell, with the down table good.
+fn json_case(up: &str, line: u32, words: &str) {
+    let kit = kit_text("", "[\"a\"]", "up.json", "down.csv");
+    let (stderr, dir) = characterize_fails(&kit, &[("up.json", up), ("down.csv", INV_DOWN)]);
+    expect(&stderr, &dir.join("up.json"), line, words);
+}
+
+#[test]
+fn json_table_with_too_few_values_is_not_a_regular_grid() {
+    json_case(
+        "{\"format\": \"ribbonmap-conductance/1\", \"inputs\": [\"a\"], \"unit\": \"uS\",\n \"axes\": [[0, 0.1, 0.2]],\n \"values\": [10, 0.1]}\n",
+        3,
+        "not a regular grid: 2 values",
+    );
+}
+
+#[test]
+fn json_axis_that_does_not_increase_is_not_a_regular_grid() {
+    json_case(
+        "{\"format\": \"ribbonmap-conductance/1\", \"inputs\": [\"a\"], \"unit\": \"uS\",\n \"axes\": [[0, 0.2, 0.1]],\n \"values\": [10, 1, 0.1]}\n",
+        2,
+        "does not increase",
+    );
+}
+
+#[test]
+fn json_table_missing_a_corner() {
+    json_case(
+        "{\"format\": \"ribbonmap-conductance/1\", \"inputs\": [\"a\"], \"unit\": \"uS\",\n \"axes\": [[0, 0.1]],\n \"values\": [10, 1]}\n",
+        1,
+        "missing corner",
+    );
+}
+
+#[test]
+fn json_table_with_an_unknown_unit() {
+    json_case(
+        "{\"format\": \"ribbonmap-conductance/1\", \"inputs\": [\"a\"],\n \"unit\": \"mho\",\n \"axes\": [[0, 0.2]],\n \"values\": [10, 0.1]}\n",
+        2,
+        "unknown conductance unit 'mho'",
+    );
+}
+
+#[test]
+fn json_table_with_a_non_numeric_value() {
+    json_case(
+        "{\"format\": \"ribbonmap-conductance/1\", \"inputs\": [\"a\"], \"unit\": \"uS\",\n \"axes\": [[0, 0.2]],\n \"values\": [10,\n \"low\"]}\n",
+        4,
+        "expected a conductance",
+    );
+}
+
+#[test]
+fn json_table_whose_inputs_differ_from_the_cell() {
+    json_case(
+        "{\"format\": \"ribbonmap-conductance/1\", \"inputs\": [\"x\"], \"unit\": \"uS\",\n \"axes\": [[0, 0.2]],\n \"values\": [10, 0.1]}\n",
+        1,
+        "differ from cell 'c'",
+    );
+}
+
 #[test]
 fn both_ribbons_conduct_named_with_the_static_current() {
     // Row a=1: Gu = 20 µS and Gd = 10 µS, both at or above their ribbons'

@@ -27,6 +27,7 @@ fn cell(name: &str, arity: usize, truth: u64, switch_energy: f64, leakage: Leaka
         },
         input_load: 1.0,
         switch_energy,
+        switch_energy_per_load: 0.0,
         leakage,
         devices: 2,
     }

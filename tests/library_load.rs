@@ -110,6 +110,11 @@ fn every_builtin_library_matches_its_json_text_read_independently() {
                 "{what}"
             );
             assert_eq!(
+                cell.switch_energy_per_load,
+                j["switch_energy_per_load"].as_f64().unwrap_or(0.0),
+                "{what}"
+            );
+            assert_eq!(
                 u64::from(cell.devices),
                 j["devices"].as_u64().unwrap_or(0),
                 "{what}"
@@ -119,6 +124,11 @@ fn every_builtin_library_matches_its_json_text_read_independently() {
                     assert_eq!(Some(*v), n.as_f64(), "{what}")
                 }
                 (Leakage::Constant(v), serde_json::Value::Null) => assert_eq!(*v, 0.0, "{what}"),
+                (Leakage::PerRow(rows), serde_json::Value::Array(list)) => {
+                    let want: Vec<Option<f64>> = list.iter().map(|x| x.as_f64()).collect();
+                    let got: Vec<Option<f64>> = rows.iter().map(|&x| Some(x)).collect();
+                    assert_eq!(got, want, "{what}");
+                }
                 (got, want) => panic!("{what}: leakage {got:?} from {want}"),
             }
             let function = j["function"].as_str().unwrap();

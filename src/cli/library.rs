@@ -196,6 +196,7 @@ fn show(spec: &str, format: LibraryFormat) -> CmdResult {
                         "delay": { "intrinsic": c.delay.intrinsic, "per_load": c.delay.per_load },
                         "input_load": c.input_load,
                         "switch_energy": c.switch_energy,
+                        "switch_energy_per_load": c.switch_energy_per_load,
                         "leakage": c.leakage,
                         "devices": c.devices,
                     })
@@ -255,7 +256,15 @@ fn show(spec: &str, format: LibraryFormat) -> CmdResult {
                             num(c.delay.per_load)
                         ),
                         num(c.input_load),
-                        num(c.switch_energy),
+                        if c.switch_energy_per_load > 0.0 {
+                            format!(
+                                "{} + {}*load",
+                                num(c.switch_energy),
+                                num(c.switch_energy_per_load)
+                            )
+                        } else {
+                            num(c.switch_energy)
+                        },
                         leakage_text(&c.leakage),
                         format!("{}", c.devices),
                     ]

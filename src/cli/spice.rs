@@ -1,6 +1,7 @@
-//! `ribbonmap spice`: map a netlist onto a characterised library and write a
-//! SPICE deck (ngspice XSPICE table models, tables beside the deck) with a
-//! DC pattern or a step stimulus.
+//! `ribbonmap spice`: write a SPICE deck (ngspice XSPICE table models, tables
+//! beside the deck) with a DC pattern or a step stimulus, of a netlist of the
+//! characterised library's cells as it stands, or (`--map`) of any netlist
+//! after mapping it onto the library.
 
 use super::common::load_library;
 use super::{CliError, CmdResult, EXIT_OK};
@@ -15,8 +16,13 @@ use std::path::{Path, PathBuf};
 /// Arguments of `ribbonmap spice`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// The netlist (.blif, .v, .bench); it is mapped onto the library first.
+    /// The netlist: structural Verilog of the library's cells (as `map -o
+    /// x.v` writes), or with `--map` any netlist (.blif, .v, .bench, ...).
     pub netlist: PathBuf,
+    /// Map the netlist onto the library first (otherwise its instances
+    /// must already be the library's cells).
+    #[arg(long)]
+    pub map: bool,
     /// A characterised library file (written by `ribbonmap characterize`).
     #[arg(long, value_name = "LIB")]
     pub lib: String,
@@ -97,12 +103,35 @@ pub fn write_deck_file(
         .map_err(|e| CliError::Input(format!("{}: cannot write: {e}", output.display())))
 }
 
+/// Reads `args.netlist` as a netlist of `lib`'s cells, without mapping.
+fn read_mapped(args: &Args, lib: &Library) -> Result<MappedNetlist, CliError> {
+    let shown = args.netlist.display().to_string();
+    let verilog = match args.reading.input_format {
+        Some(f) => f == crate::io::NetlistFormat::Verilog,
+        None => args.netlist.extension().is_some_and(|e| e == "v"),
+    };
+    if !verilog {
+        return Err(CliError::Input(format!(
+            "{shown}: a netlist of library cells is read from structural Verilog (.v, as `map -o x.v` writes); give --map to map this netlist first"
+        )));
+    }
+    let text = std::fs::read_to_string(&args.netlist)
+        .map_err(|e| CliError::Input(format!("{shown}: cannot read: {e}")))?;
+    crate::netlist::read_mapped_verilog(&text, &shown, lib, args.reading.top.as_deref())
+        .map_err(CliError::from)
+}
+
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
     let lib = load_library(&args.lib)?;
-    let net = args.reading.read(&args.netlist, Some(&lib))?;
-    let netlist = map(&net, &lib, &MapOptions::default())
-        .map_err(|e| CliError::Input(format!("{}: cannot map: {e:?}", args.netlist.display())))?;
+    let netlist = if args.map {
+        let net = args.reading.read(&args.netlist, Some(&lib))?;
+        map(&net, &lib, &MapOptions::default()).map_err(|e| {
+            CliError::Input(format!("{}: cannot map: {e:?}", args.netlist.display()))
+        })?
+    } else {
+        read_mapped(&args, &lib)?
+    };
     let width = netlist.inputs.len();
     let stimulus = match (&args.pattern, &args.stimulus) {
         (_, Some(step)) => {

@@ -4,7 +4,8 @@
 //! (as a truth table), area and devices from the kit, the delay model
 //! `intrinsic + per_load · load` from the RC charge of the slowest row,
 //! input load in units of the kit's gate capacitance, switching energy
-//! `½·C_own·Vdd²`, and per-row leakage `Vdd · I` — plus the `electrical`
+//! `½·C_own·Vdd²` and per unit load `½·C_gate·Vdd²`, and per-row leakage
+//! `Vdd · I` — plus the `electrical`
 //! block and a library-level `derived_from` record. Numbers are rounded to
 //! six significant digits so the file reads well and is stable.
 
@@ -97,11 +98,33 @@ pub fn electrical_block(c: &CellCharacter, library_dir: &Path) -> Electrical {
 /// The library as a JSON value; `library_dir` is the folder the library file
 /// will be written to (table and kit paths are made relative to it).
 pub fn library_json(ch: &Characterization, library_dir: &Path) -> Value {
+    let whole = LibraryChoice {
+        name: &ch.kit.name,
+        description: &ch.kit.description,
+        keep: &|_| true,
+    };
+    library_json_of(ch, library_dir, &whole)
+}
+
+/// Which cells of a characterised kit make a library, and what it is called.
+pub struct LibraryChoice<'a> {
+    /// The library's name.
+    pub name: &'a str,
+    /// The library's description.
+    pub description: &'a str,
+    /// Keeps a cell (by its characterisation) in the library.
+    pub keep: &'a dyn Fn(&CellCharacter) -> bool,
+}
+
+/// The library made of the cells `choice` keeps, in kit order, as a JSON
+/// value; `library_dir` as in [`library_json`].
+pub fn library_json_of(ch: &Characterization, library_dir: &Path, choice: &LibraryChoice) -> Value {
     let kit = &ch.kit;
     let vdd = kit.supply_v;
     let cells: Vec<Value> = ch
         .cells
         .iter()
+        .filter(|c| (choice.keep)(c))
         .map(|c| {
             let n = c.kit_cell.inputs.len();
             let digits = (1usize << n).div_ceil(4);
@@ -124,6 +147,7 @@ pub fn library_json(ch: &Characterization, library_dir: &Path) -> Value {
                 "delay": {"intrinsic": round6(c.intrinsic_ps), "per_load": round6(c.per_load_ps)},
                 "input_load": round6(c.input_load),
                 "switch_energy": round6(c.switch_energy_aj),
+                "switch_energy_per_load": round6(c.switch_energy_per_load_aj),
                 "leakage": leakage,
                 "devices": c.kit_cell.devices,
             });
@@ -156,8 +180,8 @@ pub fn library_json(ch: &Characterization, library_dir: &Path) -> Value {
     };
     let mut root = json!({
         "format": crate::library::FORMAT,
-        "name": kit.name,
-        "description": kit.description,
+        "name": choice.name,
+        "description": choice.description,
         "units": {"area": kit.area_unit, "delay": DELAY_UNIT, "energy": ENERGY_UNIT, "power": POWER_UNIT},
         "supply_v": vdd,
         "primary_output_load": kit.primary_output_load,
@@ -180,8 +204,12 @@ pub fn library_json(ch: &Characterization, library_dir: &Path) -> Value {
 
 /// The library file's text (pretty JSON with a final newline).
 pub fn library_text(ch: &Characterization, library_dir: &Path) -> String {
-    let mut text = serde_json::to_string_pretty(&library_json(ch, library_dir))
-        .unwrap_or_else(|_| "{}".into());
+    json_text(&library_json(ch, library_dir))
+}
+
+/// A library value as file text (pretty JSON with a final newline).
+pub fn json_text(value: &Value) -> String {
+    let mut text = serde_json::to_string_pretty(value).unwrap_or_else(|_| "{}".into());
     text.push('\n');
     text
 }

@@ -11,9 +11,11 @@
 //! netlists that use the same tables ([`spice`]), so the derived numbers can
 //! be checked in a circuit simulator the user trusts. [`levels`] finds the
 //! static voltage of every net of a mapped netlist from the same tables and
-//! its margins to the receiving cells' thresholds.
+//! its margins to the receiving cells' thresholds. [`demo_builtins`] derives
+//! the built-in ribbon libraries from the demo kit.
 
 pub mod characterize;
+pub mod demo_builtins;
 pub mod kit;
 pub mod levels;
 pub mod library_write;

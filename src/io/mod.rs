@@ -39,7 +39,7 @@ mod limits;
 mod names;
 mod summary;
 mod verilog_lex;
-mod verilog_parse;
+pub(crate) mod verilog_parse;
 mod verilog_read;
 mod verilog_write;
 

@@ -49,6 +49,14 @@ impl Library {
                 leakage,
                 c.devices
             );
+            // Only when given, so libraries without it keep their hashes.
+            if c.switch_energy_per_load != 0.0 {
+                let _ = writeln!(
+                    s,
+                    "energy_per_load={:016x}",
+                    c.switch_energy_per_load.to_bits()
+                );
+            }
         }
         let _ = writeln!(
             s,

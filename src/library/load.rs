@@ -47,6 +47,7 @@ const CELL_FIELDS: &[&str] = &[
     "delay",
     "input_load",
     "switch_energy",
+    "switch_energy_per_load",
     "leakage",
     "devices",
     "electrical",
@@ -527,6 +528,13 @@ impl Reader {
             .field(map, &site, "switch_energy", "a number")
             .unwrap_or(0.0);
         self.non_negative(switch_energy, &child(&site, "switch_energy"));
+        let switch_energy_per_load: f64 = self
+            .field(map, &site, "switch_energy_per_load", "a number")
+            .unwrap_or(0.0);
+        self.non_negative(
+            switch_energy_per_load,
+            &child(&site, "switch_energy_per_load"),
+        );
         let leakage: Leakage = self
             .field(
                 map,
@@ -593,6 +601,7 @@ impl Reader {
             delay: delay?,
             input_load,
             switch_energy,
+            switch_energy_per_load,
             leakage,
             devices,
         })

@@ -84,8 +84,11 @@ pub struct Cell {
     pub delay: DelayModel,
     /// Load each input pin presents.
     pub input_load: f64,
-    /// Energy per output transition.
+    /// Energy per output transition, without load.
     pub switch_energy: f64,
+    /// Energy per output transition per unit of driven load (input-load
+    /// units), e.g. `½·C_in·Vdd²`; 0 when the library gives none.
+    pub switch_energy_per_load: f64,
     /// Static leakage.
     pub leakage: Leakage,
     /// Device count (e.g. ribbons or transistors).

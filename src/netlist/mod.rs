@@ -24,11 +24,13 @@
 //! mapper spends no buffer cell on it, as a buffer adds area and no function.
 
 mod blif;
+mod read;
 mod report;
 mod timing;
 mod verify;
 mod verilog;
 
+pub use read::read_mapped_verilog;
 pub use report::{Report, Stage};
 pub use timing::{analyze_timing, PathStep, TimingReport};
 pub use verify::{verify, Verified, VerifyError, VerifyMode};

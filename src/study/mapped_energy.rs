@@ -33,6 +33,14 @@ pub fn switching_circuit(netlist: &MappedNetlist) -> SwitchingCircuit {
         fanins.extend(instance.inputs.iter().map(|&n| net_of(n)));
         circuit.add_gate(instance.cell, &fanins);
     }
+    // Primary outputs and storage data inputs load their nets like in
+    // static timing.
+    for net in netlist.outputs.iter().map(|p| p.net) {
+        circuit.add_end(net_of(net));
+    }
+    for net in netlist.storage.iter().map(|s| s.data) {
+        circuit.add_end(net_of(net));
+    }
     circuit
 }
 

@@ -3,7 +3,9 @@
 //! The model is the usual one for a first architecture estimate: drive the
 //! circuit with a sequence of input patterns, count how often each net
 //! changes value between consecutive patterns, and charge each change of a
-//! cell's output net with that cell's `switch_energy`. Dividing by the number
+//! cell's output net with that cell's `switch_energy` plus, when the library
+//! gives one, its `switch_energy_per_load` times the load the net drives (the
+//! `½·C_load·Vdd²` of the driven gates). Dividing by the number
 //! of pattern transitions gives the dynamic energy of one operation (one new
 //! input vector). Static power is the sum of cell leakage; when a cell gives
 //! one leakage value per input row, each row is weighted by how often it
@@ -36,6 +38,10 @@ pub struct SwitchingCircuit {
     fanin_start: Vec<u32>,
     /// Fanin nets of all gates, concatenated.
     fanins: Vec<u32>,
+    /// Per gate: how many circuit ends (primary outputs, storage data
+    /// inputs) its output net drives; each adds the library's
+    /// `primary_output_load`.
+    end_refs: Vec<u32>,
 }
 
 /// Net number of constant 0.
@@ -91,7 +97,45 @@ impl SwitchingCircuit {
             cells: Vec::new(),
             fanin_start: vec![0],
             fanins: Vec::new(),
+            end_refs: Vec::new(),
         }
+    }
+
+    /// Records that `net` drives a circuit end (a primary output or a
+    /// storage data input), which loads it with the library's
+    /// `primary_output_load` like static timing does. Ends on inputs and
+    /// constants are ignored (they carry no cell energy).
+    pub fn add_end(&mut self, net: u32) {
+        let first_gate = 2 + self.input_count;
+        if net >= first_gate {
+            if let Some(refs) = self.end_refs.get_mut((net - first_gate) as usize) {
+                *refs += 1;
+            }
+        }
+    }
+
+    /// Load on each gate's output net in input-load units: the `input_load`
+    /// of every cell pin it drives plus `primary_output_load` per circuit
+    /// end (the same loads static timing uses).
+    pub fn output_loads(&self, library: &Library) -> Vec<f64> {
+        let first_gate = 2 + self.input_count;
+        let mut load: Vec<f64> = self
+            .end_refs
+            .iter()
+            .map(|&r| r as f64 * library.primary_output_load)
+            .collect();
+        for g in 0..self.gate_count() {
+            let pin_load = library
+                .cells
+                .get(self.cells[g] as usize)
+                .map_or(0.0, |c| c.input_load);
+            for &f in self.gate_fanins(g) {
+                if f >= first_gate {
+                    load[(f - first_gate) as usize] += pin_load;
+                }
+            }
+        }
+        load
     }
 
     /// Net of combinational input `i` (0-based, declaration order).
@@ -111,6 +155,7 @@ impl SwitchingCircuit {
         self.fanins
             .extend(fanins.iter().map(|&f| if f < net { f } else { NET_FALSE }));
         self.fanin_start.push(self.fanins.len() as u32);
+        self.end_refs.push(0);
         net
     }
 
@@ -489,9 +534,10 @@ pub fn simulate_activity(
 
 /// Turns activity counts into energy per operation and static power.
 ///
-/// Energy per operation = sum over gates of toggles × the cell's
-/// `switch_energy`, divided by the number of transitions (0 when fewer than
-/// two patterns were simulated). Static power = sum over gates of the cell's
+/// Energy per operation = sum over gates of toggles × (the cell's
+/// `switch_energy` + its `switch_energy_per_load` × the load its output net
+/// drives, see [`SwitchingCircuit::output_loads`]), divided by the number of
+/// transitions (0 when fewer than two patterns were simulated). Static power = sum over gates of the cell's
 /// leakage; per-row leakage is weighted by the observed row frequencies.
 pub fn energy_from_activity(
     circuit: &SwitchingCircuit,
@@ -501,9 +547,11 @@ pub fn energy_from_activity(
     let mut switched = 0.0;
     let mut leakage = 0.0;
     let mut total_toggles = 0;
-    for g in 0..circuit.gate_count() {
+    let loads = circuit.output_loads(library);
+    for (g, load) in loads.iter().enumerate() {
         let cell = &library.cells[circuit.cells[g] as usize];
-        switched += activity.toggles[g] as f64 * cell.switch_energy;
+        let per_toggle = cell.switch_energy + cell.switch_energy_per_load * load;
+        switched += activity.toggles[g] as f64 * per_toggle;
         total_toggles += activity.toggles[g];
         leakage += match &cell.leakage {
             Leakage::Constant(v) => *v,

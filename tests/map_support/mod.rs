@@ -28,6 +28,7 @@ fn cell(
         },
         input_load: load,
         switch_energy: 1.0,
+        switch_energy_per_load: 0.0,
         leakage: Leakage::Constant(0.01),
         devices,
     }

@@ -1,0 +1,76 @@
+//! The built-in ribbon libraries are the characterisation of the demo kit.
+//!
+//! The check: characterise `libraries/devices/demo/demo.json` afresh (its
+//! conductance tables, through `ribbonmap::device`) and require the embedded
+//! `ribbon3`, `ribbon3-nomaj` and `ribbon2` to equal the result, text for
+//! text. When the characterisation or the kit changes on purpose, run
+//! `cargo run --example builtin_libraries` to regenerate the files.
+//!
+//! The cell sets and units are checked against the previous hand-typed
+//! libraries kept in `tests/data/libraries/` (same names, same units).
+
+use ribbonmap::device::demo_builtins::derived_builtin_texts;
+use ribbonmap::library::{builtin_text, Library};
+use std::path::Path;
+
+fn root() -> &'static Path {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+}
+
+fn previous(name: &str) -> Library {
+    let path = root()
+        .join("tests/data/libraries")
+        .join(format!("{name}-illustrative.json"));
+    Library::load(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()))
+}
+
+#[test]
+fn embedded_ribbon_libraries_equal_a_fresh_characterisation_of_the_demo_kit() {
+    let derived = derived_builtin_texts(root()).expect("the demo kit characterises");
+    assert_eq!(derived.len(), 3);
+    for (name, text) in derived {
+        let embedded = builtin_text(name).unwrap_or_else(|| panic!("{name} is not built in"));
+        assert!(
+            embedded == text,
+            "libraries/{name}.json differs from the characterisation of the demo kit; \
+             regenerate with `cargo run --example builtin_libraries`"
+        );
+        let fresh = Library::from_json_str(&text, name).expect("the derived library loads");
+        assert_eq!(Library::builtin(name), Some(fresh));
+    }
+}
+
+#[test]
+fn derived_libraries_keep_the_previous_cell_names_and_units() {
+    for name in ["ribbon3", "ribbon3-nomaj", "ribbon2"] {
+        let now = Library::builtin(name).unwrap();
+        let before = previous(name);
+        let names = |l: &Library| l.cells.iter().map(|c| c.name.clone()).collect::<Vec<_>>();
+        assert_eq!(names(&now), names(&before), "{name}: cell names");
+        assert_eq!(now.units, before.units, "{name}: units");
+        assert_eq!(now.storage, before.storage, "{name}: storage cells");
+        assert_eq!(now.supply_v, before.supply_v, "{name}: supply");
+        for (a, b) in now.cells.iter().zip(&before.cells) {
+            assert_eq!(
+                (a.truth, &a.inputs),
+                (b.truth, &b.inputs),
+                "{name}/{}",
+                a.name
+            );
+        }
+    }
+}
+
+#[test]
+fn subsets_carry_the_same_cells_as_ribbon3() {
+    let full = Library::builtin("ribbon3").unwrap();
+    for name in ["ribbon3-nomaj", "ribbon2"] {
+        let sub = Library::builtin(name).unwrap();
+        for cell in &sub.cells {
+            assert_eq!(Some(cell), full.cell(&cell.name), "{name}/{}", cell.name);
+        }
+    }
+    let two = Library::builtin("ribbon2").unwrap();
+    let small: Vec<_> = full.cells.iter().filter(|c| c.arity() <= 2).collect();
+    assert_eq!(small.len(), two.cells.len());
+}
