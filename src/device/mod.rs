@@ -16,6 +16,7 @@
 
 pub mod characterize;
 pub mod demo_builtins;
+pub mod embedded_tables;
 pub mod kit;
 pub mod levels;
 pub mod library_write;
