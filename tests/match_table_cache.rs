@@ -1,5 +1,5 @@
 //! The match table kept on disk between processes (`mapper::table_cache`):
-//! with `RIBBONMAP_CACHE_DIR` set, the first `map` writes the table, the
+//! in `RIBBONMAP_CACHE_DIR` when set (else the user's cache folder), the first `map` writes the table, the
 //! second reads it, and both print the same mapping. The expected netlist
 //! is the first run's own output; the outside check is the proof each run
 //! reports (`verified: proven`).
@@ -40,4 +40,64 @@ fn a_cached_table_maps_like_a_fresh_one() {
         assert_eq!(cold[field], warm[field], "{field}");
     }
     assert_eq!(warm["verified"], "proven");
+}
+
+fn map_with_env(env: &[(&str, &std::path::Path)], no_cache: bool) {
+    let mut cmd = Command::cargo_bin("ribbonmap").unwrap();
+    cmd.env_remove("RIBBONMAP_CACHE_DIR")
+        .env_remove("XDG_CACHE_HOME")
+        .env_remove("RIBBONMAP_NO_CACHE");
+    for (k, v) in env {
+        cmd.env(k, v);
+    }
+    if no_cache {
+        cmd.env("RIBBONMAP_NO_CACHE", "1");
+    }
+    let out = cmd
+        .args(["map", "benchmarks/adder8_ripple.blif"])
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+}
+
+fn tables_in(dir: &std::path::Path) -> usize {
+    std::fs::read_dir(dir).map_or(0, |d| {
+        d.filter(|e| {
+            e.as_ref()
+                .unwrap()
+                .file_name()
+                .to_string_lossy()
+                .starts_with("match-table-")
+        })
+        .count()
+    })
+}
+
+/// Without `RIBBONMAP_CACHE_DIR` the command line keeps its tables in the
+/// user's cache folder (XDG base directory layout, common practice:
+/// `$XDG_CACHE_HOME/ribbonmap`, else `$HOME/.cache/ribbonmap`), here a
+/// temporary stand-in for both; `RIBBONMAP_NO_CACHE` writes nothing.
+#[test]
+fn the_user_cache_folder_is_the_default_and_can_be_turned_off() {
+    let xdg = tempfile::tempdir().unwrap();
+    let home = tempfile::tempdir().unwrap();
+    map_with_env(
+        &[("XDG_CACHE_HOME", xdg.path()), ("HOME", home.path())],
+        false,
+    );
+    assert_eq!(tables_in(&xdg.path().join("ribbonmap")), 3);
+    map_with_env(&[("HOME", home.path())], false);
+    assert_eq!(tables_in(&home.path().join(".cache").join("ribbonmap")), 3);
+    let off = tempfile::tempdir().unwrap();
+    map_with_env(
+        &[("XDG_CACHE_HOME", off.path()), ("HOME", off.path())],
+        true,
+    );
+    assert_eq!(tables_in(&off.path().join("ribbonmap")), 0);
+    assert_eq!(tables_in(&off.path().join(".cache").join("ribbonmap")), 0);
 }

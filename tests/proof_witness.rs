@@ -53,50 +53,81 @@ fn mapped(net: &Network, lib: &Library) -> MapOutcome {
     map_detailed(net, lib, &MapOptions::default()).unwrap()
 }
 
-/// Witness and SAT engine agree on every netlist given: the SAT engine
-/// proves each mapping, and so does the witness on the default library
-/// (`ribbon3`); on other libraries the witness may leave a cone it cannot
-/// reduce (for example XOR trees lowered to AND/OR logic) to the general
-/// engine, but it never accepts what the engine refutes.
-fn witness_and_sat_agree(paths: &[PathBuf], libraries: &[&str]) {
+/// Witness and SAT engine agree on every netlist given: for every run the
+/// mapper considered (the area run and the delay runs with their area
+/// recoveries, which the three goals pick from, and the sub-library runs),
+/// the witness proves the run's netlist and the SAT engine, which knows
+/// nothing of the witness, proves it too. Returns the number of netlists
+/// checked.
+fn witness_and_sat_agree(paths: &[PathBuf], libraries: &[&str], refused_percent: usize) -> usize {
     assert!(!paths.is_empty());
+    let mut checked = 0;
+    let mut refused = Vec::new();
     for name in libraries {
         let lib = Library::builtin(name).unwrap();
-        // Known gap since extraction merges duplicate cells: a merged net's
-        // witness names one of its literals, and cones read through the
-        // other are refused as too wide (the SAT fallback of `prove` then
-        // proves them). Until that is fixed, only soundness is required.
-        let must_prove = false;
         for path in paths {
             let net = read(path);
             let outcome = mapped(&net, &lib);
-            let witness = check_witness(&net, &outcome.netlist, &lib, &outcome.witness);
-            assert!(
-                witness.is_ok() || !must_prove,
-                "{} on {name}: witness refused: {:?}",
-                path.display(),
-                witness
-            );
-            let sat = check(
-                &net,
-                &outcome.netlist.to_network(&lib),
-                &EquivOptions::default(),
-            )
-            .unwrap();
-            assert!(
-                matches!(sat, Verdict::Equivalent { .. }),
-                "{} on {name}: the SAT engine says {sat:?}",
-                path.display()
-            );
+            assert!(!outcome.runs.is_empty());
+            for run in &outcome.runs {
+                let sat = check(
+                    &net,
+                    &run.netlist.to_network(&lib),
+                    &EquivOptions::default(),
+                )
+                .unwrap();
+                assert!(
+                    matches!(sat, Verdict::Equivalent { .. }),
+                    "{} on {name}, run {}: the SAT engine says {sat:?}",
+                    path.display(),
+                    run.name
+                );
+                if let Err(e) = check_witness(&net, &run.netlist, &lib, &run.witness) {
+                    refused.push(format!(
+                        "{} on {name}, run {}: {e}",
+                        path.display(),
+                        run.name
+                    ));
+                }
+                checked += 1;
+            }
         }
     }
+    // Soundness is absolute (every netlist above is proven by the SAT
+    // engine). The witness is complete on all but a few cones it cannot
+    // reduce (wide parity cones below dropped cut leaves, redundant logic
+    // where two leaves of one cut are equal); those fall back to the SAT
+    // engine in `prove`. Regression bound, `refused_percent` (59 of 4,050
+    // on the small set and 146 of 5,040 on the whole set when this test
+    // was written).
+    eprintln!(
+        "witness refused {} of {checked} proven netlists:\n{}",
+        refused.len(),
+        refused.join("\n")
+    );
+    assert!(
+        refused.len() * 100 <= checked * refused_percent,
+        "the witness was refused on {} of {checked} proven netlists:\n{}",
+        refused.len(),
+        refused.join("\n")
+    );
+    checked
 }
 
+/// The small reference netlists (ISCAS-85/89 and EPFL ones under 40 kB) and
+/// benchmarks under 20 kB, on every built-in library, every run of every
+/// goal.
 #[test]
 fn witness_and_sat_agree_on_the_small_test_netlists() {
     let mut paths = files("tests/data/reference/netlists", 40_000);
     paths.extend(files("benchmarks", 20_000));
-    witness_and_sat_agree(&paths, &["ribbon3", "nand-nor-inv", "cmos-le"]);
+    let checked = witness_and_sat_agree(&paths, Library::builtin_names(), 2);
+    eprintln!(
+        "witness and SAT engine agree on {checked} mapped netlists ({} circuits, {} libraries)",
+        paths.len(),
+        Library::builtin_names().len()
+    );
+    assert!(checked >= paths.len() * Library::builtin_names().len());
 }
 
 #[test]
@@ -107,13 +138,43 @@ fn witness_and_sat_agree_on_the_small_test_netlists() {
 fn witness_and_sat_agree_on_every_test_netlist_and_library() {
     let mut paths = files("tests/data/reference/netlists", u64::MAX);
     paths.extend(files("benchmarks", u64::MAX));
-    witness_and_sat_agree(&paths, Library::builtin_names());
+    let checked = witness_and_sat_agree(&paths, Library::builtin_names(), 4);
+    eprintln!(
+        "witness and SAT engine agree on {checked} mapped netlists ({} circuits, {} libraries)",
+        paths.len(),
+        Library::builtin_names().len()
+    );
+}
+
+/// Every mapping that merged duplicate cells is proven by the witness
+/// alone: the default `prove` takes the witness route, not the fallback.
+#[test]
+fn merged_cells_are_proven_by_the_witness_alone() {
+    let mut merged = 0;
+    for file in [
+        "benchmarks/adder8_ripple.blif",
+        "benchmarks/multiplier8_array.blif",
+        "tests/data/reference/netlists/iscas85/c432.v",
+    ] {
+        let path = Path::new(env!("CARGO_MANIFEST_DIR")).join(file);
+        let net = read(&path);
+        for name in Library::builtin_names() {
+            let lib = Library::builtin(name).unwrap();
+            let outcome = mapped(&net, &lib);
+            merged += (0..outcome.netlist.nets.len() as u32)
+                .filter(|&n| outcome.witness.net_lits.of(n).len() > 1)
+                .count();
+            let (_, route) = prove(&net, &outcome.netlist, &lib, &outcome.witness).unwrap();
+            assert_eq!(route, ProofRoute::Witness, "{file} on {name}");
+        }
+    }
+    // The case this guards: nets that carry more than one literal.
+    assert!(merged > 0, "no mapping merged two node phases onto one net");
 }
 
 /// A ripple adder and a comparator (XOR and AND trees wider than six
 /// leaves after balancing) are proven by the witness alone.
 #[test]
-#[ignore = "known gap after merging duplicate cells in extraction: the witness of a merged net names one of its literals, so the local check refuses the unmutated mapping first (the SAT fallback of prove still decides); fix pending"]
 fn balanced_wide_trees_are_proven_by_the_witness_alone() {
     for file in [
         "benchmarks/adder16_ripple.blif",
@@ -125,7 +186,7 @@ fn balanced_wide_trees_are_proven_by_the_witness_alone() {
             continue;
         }
         let net = read(&path);
-        for name in ["ribbon3", "nand-nor-inv"] {
+        for &name in Library::builtin_names() {
             let lib = Library::builtin(name).unwrap();
             let outcome = mapped(&net, &lib);
             let (_, route) = prove(&net, &outcome.netlist, &lib, &outcome.witness).unwrap();
@@ -135,9 +196,19 @@ fn balanced_wide_trees_are_proven_by_the_witness_alone() {
 }
 
 fn adder() -> (Network, Library, MapOutcome) {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("benchmarks/adder8_ripple.blif");
+    adder_on("cmos-le")
+}
+
+/// The 8-bit ripple adder mapped onto `library`, its witness accepted.
+fn adder_on(library: &str) -> (Network, Library, MapOutcome) {
+    mapped_on("benchmarks/adder8_ripple.blif", library)
+}
+
+/// `file` mapped onto `library`, its witness accepted.
+fn mapped_on(file: &str, library: &str) -> (Network, Library, MapOutcome) {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join(file);
     let net = read(&path);
-    let lib = Library::builtin("cmos-le").unwrap();
+    let lib = Library::builtin(library).unwrap();
     let outcome = mapped(&net, &lib);
     check_witness(&net, &outcome.netlist, &lib, &outcome.witness).unwrap();
     (net, lib, outcome)
@@ -159,7 +230,6 @@ fn cell_index(lib: &Library, name: &str) -> u32 {
 }
 
 #[test]
-#[ignore = "known gap after merging duplicate cells in extraction: the witness of a merged net names one of its literals, so the local check refuses the unmutated mapping first (the SAT fallback of prove still decides); fix pending"]
 fn one_wrong_cell_is_refused() {
     let (net, lib, outcome) = adder();
     let mut mutant = outcome.netlist.clone();
@@ -176,32 +246,35 @@ fn one_wrong_cell_is_refused() {
 }
 
 #[test]
-#[ignore = "known gap after merging duplicate cells in extraction: the witness of a merged net names one of its literals, so the local check refuses the unmutated mapping first (the SAT fallback of prove still decides); fix pending"]
+#[ignore = "no built-in library maps the adder or the multiplier to a cell that is asymmetric in two pins reading different nets since extraction merges duplicate cells, so the mutant cannot be built from these mappings; kept for when one does"]
 fn one_swapped_pin_is_refused() {
-    let (net, lib, outcome) = adder();
     // Swap two pins of a cell that is not symmetric in them, where the two
-    // nets differ, on every such instance until one is found that matters.
+    // nets differ, on every such instance of the adder on every built-in
+    // library (some map it to symmetric cells only).
     let mut tried = 0;
-    for (idx, inst) in outcome.netlist.instances.iter().enumerate() {
-        let cell = &lib.cells[inst.cell as usize];
-        for (p, q) in [(0usize, 1usize), (0, 2), (1, 2)] {
-            if q >= cell.arity() || inst.inputs[p] == inst.inputs[q] {
-                continue;
-            }
-            let swapped = swap_pin_truth(cell.truth, cell.arity(), p, q);
-            if swapped == cell.truth {
-                continue;
-            }
-            let mut mutant = outcome.netlist.clone();
-            mutant.instances[idx].inputs.swap(p, q);
-            assert!(check_witness(&net, &mutant, &lib, &outcome.witness).is_err());
-            tried += 1;
-            if tried == 1 {
-                assert_refused(&net, &lib, &outcome, &mutant);
+    for &name in Library::builtin_names() {
+        let (net, lib, outcome) = adder_on(name);
+        for (idx, inst) in outcome.netlist.instances.iter().enumerate() {
+            let cell = &lib.cells[inst.cell as usize];
+            for (p, q) in [(0usize, 1usize), (0, 2), (1, 2)] {
+                if q >= cell.arity() || inst.inputs[p] == inst.inputs[q] {
+                    continue;
+                }
+                let swapped = swap_pin_truth(cell.truth, cell.arity(), p, q);
+                if swapped == cell.truth {
+                    continue;
+                }
+                let mut mutant = outcome.netlist.clone();
+                mutant.instances[idx].inputs.swap(p, q);
+                assert!(check_witness(&net, &mutant, &lib, &outcome.witness).is_err());
+                tried += 1;
+                if tried == 1 {
+                    assert_refused(&net, &lib, &outcome, &mutant);
+                }
             }
         }
     }
-    assert!(tried > 0, "no asymmetric cell in the mapped adder");
+    assert!(tried > 0, "no asymmetric cell in the mapped circuits");
 }
 
 /// The table of a cell with pins `p` and `q` exchanged.
@@ -216,7 +289,6 @@ fn swap_pin_truth(truth: u64, arity: usize, p: usize, q: usize) -> u64 {
 }
 
 #[test]
-#[ignore = "known gap after merging duplicate cells in extraction: the witness of a merged net names one of its literals, so the local check refuses the unmutated mapping first (the SAT fallback of prove still decides); fix pending"]
 fn one_wrong_phase_is_refused() {
     let (net, lib, outcome) = adder();
     let mut mutant = outcome.netlist.clone();
@@ -240,7 +312,6 @@ fn one_wrong_phase_is_refused() {
 }
 
 #[test]
-#[ignore = "known gap after merging duplicate cells in extraction: the witness of a merged net names one of its literals, so the local check refuses the unmutated mapping first (the SAT fallback of prove still decides); fix pending"]
 fn an_output_on_the_wrong_net_is_refused() {
     let (net, lib, outcome) = adder();
     let mut mutant = outcome.netlist.clone();

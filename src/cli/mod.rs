@@ -157,6 +157,7 @@ pub(crate) fn write_stdout(text: std::fmt::Arguments) {
 
 /// Parses the command line, runs the command and maps errors to exit codes.
 pub fn main() -> ExitCode {
+    crate::mapper::table_cache::use_user_cache_folder();
     let cli = match Cli::try_parse() {
         Ok(cli) => cli,
         Err(e) => {

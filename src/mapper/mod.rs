@@ -212,7 +212,11 @@ const DELAY_BOUNDS: [f64; 4] = [0.0, 0.1, 0.25, 0.5];
 /// Area recovery of a delay-mapped `cover` within `target` at the outputs:
 /// area flow, then `area_passes` exact-area passes, then extraction (with
 /// the witness of every net, see [`witness`]).
-fn recover(mut cover: Cover, target: f32, area_passes: usize) -> (MappedNetlist, Vec<u32>) {
+fn recover(
+    mut cover: Cover,
+    target: f32,
+    area_passes: usize,
+) -> (MappedNetlist, witness::NetClaims) {
     cover.mark();
     cover.set_required(target);
     cover.update_fanout_estimate();
@@ -317,7 +321,7 @@ pub fn map_detailed(
     let t = Instant::now();
     // The runs of this library, measured once the covered network's origin
     // (which owns the balanced network the covers borrow) is known.
-    let mut own: Vec<(String, (MappedNetlist, Vec<u32>))> = vec![(
+    let mut own: Vec<(String, (MappedNetlist, witness::NetClaims))> = vec![(
         "area".to_string(),
         recover(area_cover, f32::INFINITY, opts.area_passes),
     )];

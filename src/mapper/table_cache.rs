@@ -1,12 +1,15 @@
 //! The match table of a library, kept on disk between processes.
 //!
 //! Building the table (supergate enumeration) costs a few hundred
-//! milliseconds, which dominated mapping small circuits. When
-//! `$RIBBONMAP_CACHE_DIR` is set, the table is written once per library to
-//! that folder under a name made of the library's content hash and this
-//! format's version, and read back by later processes. Without it nothing
-//! is written (so library users and test suites never touch a cache folder
-//! they did not name). Reading checks the file: a checksum over its bytes, the
+//! milliseconds, which dominated mapping small circuits. The table is
+//! written once per library to a cache folder under a name made of the
+//! library's content hash and this format's version, and read back by later
+//! processes. The folder is `$RIBBONMAP_CACHE_DIR` when set; otherwise the
+//! user's cache folder (`$XDG_CACHE_HOME/ribbonmap`, else
+//! `$HOME/.cache/ribbonmap`), but only in a process that asked for it with
+//! [`use_user_cache_folder`] (the command line does), so library users and
+//! test suites never touch a cache folder they did not name. A non-empty
+//! `$RIBBONMAP_NO_CACHE` turns the cache off. Reading checks the file: a checksum over its bytes, the
 //! library hash inside it, and every implementation rebuilt from its gates
 //! by [`Implementation::new`] with the stored function compared, so a
 //! stale, truncated or edited file is ignored and the table rebuilt.
@@ -25,6 +28,7 @@ use super::implementation::{ImplGate, Implementation, Source};
 use super::matches::MatchTable;
 use crate::library::Library;
 use std::path::PathBuf;
+use std::sync::atomic::{AtomicBool, Ordering};
 
 const TAG: &[u8; 8] = b"RMMATCH1";
 /// Most entries of any list a cache file may declare (bounds allocation).
@@ -53,11 +57,39 @@ pub fn load_or_build(lib: &Library) -> MatchTable {
     table
 }
 
-/// Where the table of `lib` is kept: in `$RIBBONMAP_CACHE_DIR` when set.
+/// Whether this process keeps match tables in the user's cache folder when
+/// `$RIBBONMAP_CACHE_DIR` is not set.
+static USER_FOLDER: AtomicBool = AtomicBool::new(false);
+
+/// Lets this process keep match tables in the user's cache folder when
+/// `$RIBBONMAP_CACHE_DIR` is not set (see the module comment); the command
+/// line calls it at start-up.
+pub fn use_user_cache_folder() {
+    USER_FOLDER.store(true, Ordering::Relaxed);
+}
+
+/// The folder match tables are kept in, if any (see the module comment).
+pub fn cache_folder() -> Option<PathBuf> {
+    let non_empty = |v: &str| std::env::var_os(v).filter(|s| !s.is_empty());
+    if non_empty("RIBBONMAP_NO_CACHE").is_some() {
+        return None;
+    }
+    if let Some(dir) = non_empty("RIBBONMAP_CACHE_DIR") {
+        return Some(PathBuf::from(dir));
+    }
+    if !USER_FOLDER.load(Ordering::Relaxed) {
+        return None;
+    }
+    if let Some(dir) = non_empty("XDG_CACHE_HOME") {
+        return Some(PathBuf::from(dir).join("ribbonmap"));
+    }
+    non_empty("HOME").map(|h| PathBuf::from(h).join(".cache").join("ribbonmap"))
+}
+
+/// Where the table of `lib` is kept: in [`cache_folder`], named by the
+/// library's content hash.
 pub fn cache_path(lib: &Library) -> Option<PathBuf> {
-    std::env::var_os("RIBBONMAP_CACHE_DIR")
-        .filter(|d| !d.is_empty())
-        .map(|d| PathBuf::from(d).join(format!("match-table-{:016x}-v1.bin", lib.content_hash())))
+    cache_folder().map(|d| d.join(format!("match-table-{:016x}-v1.bin", lib.content_hash())))
 }
 
 /// The file contents for `table` of `lib`.

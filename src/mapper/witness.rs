@@ -5,15 +5,25 @@
 //! rediscover which net of the netlist corresponds to which node of the
 //! input; on deep arithmetic that search is what makes the proof slow. The
 //! mapper knows the answer: every net it creates for a node phase carries
-//! that node phase of the network it covered. The witness keeps that
-//! correspondence, plus the correspondence between the input network and
-//! the covered network when balancing rebuilt it, and nothing else: it is
-//! plain data, checked by [`crate::proof`] without trusting the mapper.
+//! that node phase of the network it covered, and was built from the nets
+//! of one cut's leaves. The witness keeps those claims, plus the
+//! correspondence between the input network and the covered network when
+//! balancing rebuilt it, and nothing else: it is plain data, checked by
+//! [`crate::proof`] without trusting the mapper.
+//!
+//! One net may carry several literals: extraction merges cells that compute
+//! the same function of the same nets, so the cells made for two node
+//! phases (functionally equal, or one a duplicate of a cell inside the
+//! other's match) can end on one net. Each literal is a claim of its own,
+//! with the cut it was built from.
 
 use crate::network::{Lit, Network};
 
 /// Marks a net or node without a recorded counterpart.
 pub const NO_LIT: u32 = u32::MAX;
+
+/// Most leaves of a claim's cut (the widest cut the mapper enumerates).
+pub const CLAIM_LEAVES: usize = 6;
 
 /// How the network the mapper covered relates to the network it was given.
 #[derive(Clone, Debug)]
@@ -37,15 +47,127 @@ pub enum CoveredOrigin {
     },
 }
 
+/// One claim: a net carries a literal of the covered network, computed by
+/// the cells below the net from the nets of a cut's leaves.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Claim {
+    /// Raw [`Lit`] of the covered network.
+    pub lit: u32,
+    /// The cut's leaf nodes, padded with [`NO_LIT`]; all [`NO_LIT`] for a
+    /// net driven by a port or a constant.
+    pub leaves: [u32; CLAIM_LEAVES],
+}
+
+impl Claim {
+    /// The claim that a port- or constant-driven net carries `lit`.
+    pub fn port(lit: u32) -> Claim {
+        Claim {
+            lit,
+            leaves: [NO_LIT; CLAIM_LEAVES],
+        }
+    }
+
+    /// The claim that a cell-driven net carries `lit`, built over the cut
+    /// `leaves` (at most [`CLAIM_LEAVES`]; more are cut off, which can
+    /// only make the check refuse).
+    pub fn cell(lit: u32, leaves: &[u32]) -> Claim {
+        let mut padded = [NO_LIT; CLAIM_LEAVES];
+        for (slot, &l) in padded.iter_mut().zip(leaves) {
+            *slot = l;
+        }
+        Claim {
+            lit,
+            leaves: padded,
+        }
+    }
+
+    /// The covered literal claimed.
+    pub fn literal(&self) -> Lit {
+        Lit::from_raw(self.lit)
+    }
+
+    /// The cut's leaf nodes.
+    pub fn leaf_nodes(&self) -> impl Iterator<Item = u32> + '_ {
+        self.leaves.iter().copied().take_while(|&l| l != NO_LIT)
+    }
+}
+
+/// The claims of every net of a mapped netlist, grouped by net.
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
+pub struct NetClaims {
+    /// `claims[start[n]..start[n + 1]]` are net `n`'s claims.
+    start: Vec<u32>,
+    claims: Vec<Claim>,
+}
+
+impl NetClaims {
+    /// Groups `(net, claim)` pairs over `nets` nets (nets without a pair
+    /// carry no literal: nets inside a multi-cell match).
+    pub fn new(nets: usize, mut pairs: Vec<(u32, Claim)>) -> NetClaims {
+        pairs.sort_by_key(|&(net, c)| (net, c.lit));
+        let mut start = Vec::with_capacity(nets + 1);
+        let mut at = 0;
+        for n in 0..nets as u32 {
+            start.push(at as u32);
+            while at < pairs.len() && pairs[at].0 == n {
+                at += 1;
+            }
+        }
+        start.push(at as u32);
+        pairs.truncate(at);
+        NetClaims {
+            start,
+            claims: pairs.into_iter().map(|(_, c)| c).collect(),
+        }
+    }
+
+    /// Number of nets.
+    pub fn len(&self) -> usize {
+        self.start.len().saturating_sub(1)
+    }
+
+    /// True when there is no net.
+    pub fn is_empty(&self) -> bool {
+        self.len() == 0
+    }
+
+    /// Total number of claims.
+    pub fn count(&self) -> usize {
+        self.claims.len()
+    }
+
+    /// The claims of `net` (empty for an unknown net).
+    pub fn of(&self, net: u32) -> &[Claim] {
+        match (
+            self.start.get(net as usize),
+            self.start.get(net as usize + 1),
+        ) {
+            (Some(&a), Some(&b)) => &self.claims[a as usize..b as usize],
+            _ => &[],
+        }
+    }
+
+    /// Mutable claims of `net`, for tests that forge a witness.
+    pub fn of_mut(&mut self, net: u32) -> &mut [Claim] {
+        match (
+            self.start.get(net as usize),
+            self.start.get(net as usize + 1),
+        ) {
+            (Some(&a), Some(&b)) => &mut self.claims[a as usize..b as usize],
+            _ => &mut [],
+        }
+    }
+}
+
 /// The mapper's record of what every net of its netlist implements.
 #[derive(Clone, Debug)]
 pub struct CoverWitness {
     /// Where the covered network came from (shared by every run of one
     /// mapping call, see [`super::runs`]).
     pub origin: std::sync::Arc<CoveredOrigin>,
-    /// Per net of the mapped netlist: the raw [`Lit`] of the covered network
-    /// it carries, or [`NO_LIT`] for a net inside a multi-cell match.
-    pub net_lits: Vec<u32>,
+    /// Per net of the mapped netlist: the covered literals it carries, each
+    /// with its cut (none for a net inside a multi-cell match).
+    pub net_lits: NetClaims,
 }
 
 impl CoverWitness {
@@ -60,11 +182,13 @@ impl CoverWitness {
         }
     }
 
-    /// The covered literal net `net` carries, if the mapper recorded one.
-    pub fn lit_of_net(&self, net: u32) -> Option<Lit> {
-        match self.net_lits.get(net as usize) {
-            Some(&raw) if raw != NO_LIT => Some(Lit::from_raw(raw)),
-            _ => None,
-        }
+    /// The covered literals net `net` carries, if the mapper recorded any.
+    pub fn lits_of_net(&self, net: u32) -> impl Iterator<Item = Lit> + '_ {
+        self.net_lits.of(net).iter().map(Claim::literal)
+    }
+
+    /// Whether net `net` carries covered literal `lit`.
+    pub fn net_carries(&self, net: u32, lit: Lit) -> bool {
+        self.lits_of_net(net).any(|l| l == lit)
     }
 }

@@ -1,19 +1,25 @@
 //! Mapped netlist equals covered network: the check of the mapper's witness.
 //!
-//! Every net the witness names carries a literal of the covered network.
-//! For each such net driven by a cell, the cells between it and the nearest
-//! named nets (or constants) below it form a small cone; its function over
-//! those nets' nodes must equal the covered network's function of the named
-//! literal over the same nodes, exhaustively over the at most six leaves.
+//! Every net the witness names carries one or more literals of the covered
+//! network (a net where extraction merged equal cells carries several),
+//! each claimed with the cut its cells were built from. For each claim on a
+//! cell-driven net, the cells between the net and the nets carrying a
+//! phase of one of the cut's leaf nodes (or constants) form a small cone;
+//! its function over those leaves must equal the covered network's
+//! function of the claimed literal over the same leaves, exhaustively over
+//! the at most six leaves. Cells below the net that are named for other
+//! node phases are walked through when their phases are not leaves of this
+//! cut, so a cell shared by two matches is checked within each.
+//!
 //! With ports and storage tied to the right nodes and every output and
-//! next-state net named with its covered literal, induction over the
-//! netlist's topological order proves every output equal. Each cone is
-//! checked on its own, so the work is linear in the netlist and splits over
-//! threads.
+//! next-state net carrying its covered literal, induction over the
+//! netlist's topological order proves every claim, hence every output,
+//! equal. Each claim is checked on its own, so the work is linear in the
+//! netlist and splits over threads.
 
 use super::cone::{cell_word, cone_equals, with_phase, ConeScratch, Leaves, MAX_CONE};
 use crate::library::Library;
-use crate::mapper::witness::CoverWitness;
+use crate::mapper::witness::{Claim, CoverWitness, CLAIM_LEAVES};
 use crate::netlist::{Driver, MappedNetlist, NetId};
 use crate::network::{Lit, Network};
 use rayon::prelude::*;
@@ -40,17 +46,27 @@ pub fn check_cells(
     }
     check_structure(mapped, lib)?;
     check_ports(mapped, covered, witness)?;
-    let named: Vec<u32> = mapped
-        .instances
-        .iter()
-        .map(|inst| inst.output)
-        .filter(|&n| witness.lit_of_net(n).is_some())
-        .collect();
+    let limit = covered.num_nodes() as u32;
+    let mut named: Vec<(u32, u32)> = Vec::new();
+    for net in 0..mapped.nets.len() as u32 {
+        for (k, claim) in witness.net_lits.of(net).iter().enumerate() {
+            if claim.lit >> 1 >= limit || claim.leaf_nodes().any(|l| l >= limit) {
+                return refuse(format!(
+                    "net '{}' names a node the covered network does not have",
+                    mapped.nets[net as usize].name
+                ));
+            }
+            if matches!(mapped.nets[net as usize].driver, Driver::Cell(_)) {
+                named.push((net, k as u32));
+            }
+        }
+    }
     named
         .par_chunks(4096)
         .try_for_each_init(Scratch::default, |scratch, chunk| {
-            for &net in chunk {
-                scratch.check_net(mapped, lib, covered, witness, net)?;
+            for &(net, k) in chunk {
+                let claim = witness.net_lits.of(net)[k as usize];
+                scratch.check_claim(mapped, lib, covered, witness, net, &claim)?;
             }
             Ok(())
         })
@@ -89,10 +105,13 @@ fn check_ports(
     covered: &Network,
     witness: &CoverWitness,
 ) -> Result<(), Refused> {
-    let port_lit = |net: NetId| -> Option<Lit> {
-        match mapped.nets.get(net as usize)?.driver {
-            Driver::Constant(c) => Some(Lit::FALSE.xor(c)),
-            _ => witness.lit_of_net(net),
+    // Whether `net` carries `lit`: a constant net by its value, any other
+    // by one of its claims (each claim is checked on its own).
+    let carries = |net: NetId, lit: Lit| -> bool {
+        match mapped.nets.get(net as usize).map(|n| n.driver) {
+            Some(Driver::Constant(c)) => lit == Lit::FALSE.xor(c),
+            Some(_) => witness.net_carries(net, lit),
+            None => false,
         }
     };
     if mapped.inputs.len() != covered.inputs().len()
@@ -106,7 +125,7 @@ fn check_ports(
             return refuse(format!("input '{}' is not in the covered network", p.name));
         };
         let driven = mapped.nets.get(p.net as usize).map(|n| n.driver);
-        if driven != Some(Driver::Input(i as u32)) || port_lit(p.net) != Some(node.lit()) {
+        if driven != Some(Driver::Input(i as u32)) || !carries(p.net, node.lit()) {
             return refuse(format!("input '{}' is not tied to its node", p.name));
         }
     }
@@ -118,15 +137,13 @@ fn check_ports(
             ));
         };
         let driven = mapped.nets.get(s.output as usize).map(|n| n.driver);
-        if driven != Some(Driver::Storage(i as u32))
-            || port_lit(s.output) != Some(orig.output.lit())
-        {
+        if driven != Some(Driver::Storage(i as u32)) || !carries(s.output, orig.output.lit()) {
             return refuse(format!(
                 "storage '{}' output is not tied to its node",
                 s.name
             ));
         }
-        if port_lit(s.data) != Some(orig.next) {
+        if !carries(s.data, orig.next) {
             return refuse(format!("storage '{}' data is not its next state", s.name));
         }
     }
@@ -134,35 +151,34 @@ fn check_ports(
         let Some(&lit) = covered.outputs().get(&p.name) else {
             return refuse(format!("output '{}' is not in the covered network", p.name));
         };
-        if port_lit(p.net) != Some(lit) {
+        if !carries(p.net, lit) {
             return refuse(format!("output '{}' is not its covered literal", p.name));
         }
     }
-    // Every other named net driven by a port or constant names that port
-    // or constant (cells are checked cone by cone).
+    // Every claim on a net driven by a port or constant names that port
+    // or constant (claims on cell nets are checked cone by cone).
     for (n, net) in mapped.nets.iter().enumerate() {
-        let Some(lit) = witness.lit_of_net(n as u32) else {
-            continue;
-        };
-        let ok = match net.driver {
-            Driver::Cell(_) => true,
-            Driver::Constant(c) => lit == Lit::FALSE.xor(c),
-            Driver::Input(i) => mapped
-                .inputs
-                .get(i as usize)
-                .and_then(|p| covered.inputs().get(&p.name))
-                .is_some_and(|id| id.lit() == lit),
-            Driver::Storage(i) => mapped
-                .storage
-                .get(i as usize)
-                .and_then(|s| covered.storage().get(&s.name))
-                .is_some_and(|s| s.output.lit() == lit),
-        };
-        if !ok {
-            return refuse(format!(
-                "net '{}' is named with the wrong literal",
-                net.name
-            ));
+        for lit in witness.lits_of_net(n as u32) {
+            let ok = match net.driver {
+                Driver::Cell(_) => true,
+                Driver::Constant(c) => lit == Lit::FALSE.xor(c),
+                Driver::Input(i) => mapped
+                    .inputs
+                    .get(i as usize)
+                    .and_then(|p| covered.inputs().get(&p.name))
+                    .is_some_and(|id| id.lit() == lit),
+                Driver::Storage(i) => mapped
+                    .storage
+                    .get(i as usize)
+                    .and_then(|s| covered.storage().get(&s.name))
+                    .is_some_and(|s| s.output.lit() == lit),
+            };
+            if !ok {
+                return refuse(format!(
+                    "net '{}' is named with the wrong literal",
+                    net.name
+                ));
+            }
         }
     }
     Ok(())
@@ -172,54 +188,67 @@ fn check_ports(
 #[derive(Default)]
 struct Scratch {
     leaves: Leaves,
+    /// The claim's cut: leaf nodes in order.
+    cut: [u32; CLAIM_LEAVES],
+    cut_len: usize,
     nets: Vec<(u32, u64)>,
     cone: ConeScratch,
 }
 
 impl Scratch {
-    /// Checks the cone of the cell-driven net `net`.
-    fn check_net(
+    /// Checks one claim of the cell-driven net `net`: the cells below it,
+    /// down to nets carrying a phase of one of the claim's leaf nodes,
+    /// compute the claimed literal over those leaves.
+    fn check_claim(
         &mut self,
         mapped: &MappedNetlist,
         lib: &Library,
         covered: &Network,
         witness: &CoverWitness,
         net: NetId,
+        claim: &Claim,
     ) -> Result<(), Refused> {
-        let lit = witness
-            .lit_of_net(net)
-            .expect("only named nets are checked");
         self.leaves.clear();
         self.nets.clear();
-        let cells = match self.cell_net_word(mapped, lib, witness, net) {
-            Some(w) => w,
-            None => {
+        self.cut_len = 0;
+        for leaf in claim.leaf_nodes() {
+            self.cut[self.cut_len] = leaf;
+            self.cut_len += 1;
+        }
+        let reduced = self.cell_net_word(mapped, lib, witness, net);
+        // Every leaf is a variable, read by the cells or not: the covered
+        // walk stops at each of them.
+        let all_leaves = (0..self.cut_len).all(|k| self.leaves.word(self.cut[k]).is_some());
+        let cells = match reduced {
+            Some(w) if all_leaves => w,
+            _ => {
                 return refuse(format!(
-                    "the cells driving net '{}' do not reduce to at most six named nets",
+                    "the cells driving net '{}' do not reduce to its cut's leaves",
                     mapped.nets[net as usize].name
                 ))
             }
         };
-        match cone_equals(covered, lit, &self.leaves, &mut self.cone, cells) {
-            Some(true) => {}
-            Some(false) => {
-                return refuse(format!(
-                    "net '{}' does not compute its covered literal",
-                    mapped.nets[net as usize].name
-                ))
-            }
-            None => {
-                return refuse(format!(
-                    "the covered cone of net '{}' is too wide to check",
-                    mapped.nets[net as usize].name
-                ))
-            }
+        match cone_equals(
+            covered,
+            claim.literal(),
+            &self.leaves,
+            &mut self.cone,
+            cells,
+        ) {
+            Some(true) => Ok(()),
+            Some(false) => refuse(format!(
+                "net '{}' does not compute its covered literal",
+                mapped.nets[net as usize].name
+            )),
+            None => refuse(format!(
+                "the covered cone of net '{}' is too wide to check",
+                mapped.nets[net as usize].name
+            )),
         }
-        Ok(())
     }
 
     /// The word of the cell driving `net`, its inputs evaluated down to
-    /// named nets (leaves) and constants.
+    /// the nets of the cut's leaves and constants.
     fn cell_net_word(
         &mut self,
         mapped: &MappedNetlist,
@@ -239,7 +268,10 @@ impl Scratch {
         Some(cell_word(truth, &words[..inst.inputs.len()]))
     }
 
-    /// The word of a net read inside a cone.
+    /// The word of a net read inside a cone: a leaf when it carries a
+    /// phase of a leaf node (every claim of a net is checked, so by
+    /// induction over the netlist's order the net equals that phase),
+    /// otherwise its cell evaluated in turn.
     fn input_word(
         &mut self,
         mapped: &MappedNetlist,
@@ -247,26 +279,38 @@ impl Scratch {
         witness: &CoverWitness,
         net: NetId,
     ) -> Option<u64> {
-        match mapped.nets[net as usize].driver {
-            Driver::Constant(c) => return Some(with_phase(0, c)),
-            Driver::Cell(_) if witness.lit_of_net(net).is_none() => {
-                if let Some(&(_, w)) = self.nets.iter().find(|(n, _)| *n == net) {
-                    return Some(w);
-                }
-                if self.nets.len() >= MAX_CONE {
-                    return None;
-                }
-                let w = self.cell_net_word(mapped, lib, witness, net)?;
-                self.nets.push((net, w));
-                return Some(w);
+        let driver = mapped.nets[net as usize].driver;
+        if let Driver::Constant(c) = driver {
+            return Some(with_phase(0, c));
+        }
+        let cut = &self.cut[..self.cut_len];
+        let mut in_cut = witness
+            .lits_of_net(net)
+            .filter(|l| cut.contains(&l.node().0));
+        if let Some(lit) = in_cut.next() {
+            let w = self.leaves.word(lit.node().0)?;
+            // The net carries several leaves (merged equal cells): they are
+            // equal, so they share one variable.
+            for other in in_cut {
+                self.leaves.tie(
+                    other.node().0,
+                    lit.node().0,
+                    lit.is_complemented() ^ other.is_complemented(),
+                );
             }
-            _ => {}
+            return Some(with_phase(w, lit.is_complemented()));
         }
-        let lit = witness.lit_of_net(net)?;
-        if lit.node().0 == 0 {
-            return Some(with_phase(0, lit.is_complemented()));
+        if !matches!(driver, Driver::Cell(_)) {
+            return None;
         }
-        let w = self.leaves.word(lit.node().0)?;
-        Some(with_phase(w, lit.is_complemented()))
+        if let Some(&(_, w)) = self.nets.iter().find(|(n, _)| *n == net) {
+            return Some(w);
+        }
+        if self.nets.len() >= MAX_CONE {
+            return None;
+        }
+        let w = self.cell_net_word(mapped, lib, witness, net)?;
+        self.nets.push((net, w));
+        Some(w)
     }
 }

@@ -51,47 +51,70 @@ pub fn cell_word(truth: u64, inputs: &[u64]) -> u64 {
     out
 }
 
-/// The leaves of one cone: distinct nodes, each given one variable.
+/// The leaves of one cone: distinct nodes, each given one variable, or
+/// tied to another leaf's variable (in either phase) when both are known to
+/// be equal.
 #[derive(Clone, Debug, Default)]
 pub struct Leaves {
     nodes: Vec<u32>,
+    /// Per node: its variable and whether it is that variable's complement.
+    vars: Vec<(u8, bool)>,
+    /// Number of variables given out.
+    count: usize,
 }
 
 impl Leaves {
     /// Forgets every leaf.
     pub fn clear(&mut self) {
         self.nodes.clear();
+        self.vars.clear();
+        self.count = 0;
     }
 
-    /// The variable word of `node`, giving it the next variable when it is
-    /// new; `None` past [`MAX_LEAVES`].
+    /// The word of `node`, giving it the next variable when it is new;
+    /// `None` past [`MAX_LEAVES`] variables.
     pub fn word(&mut self, node: u32) -> Option<u64> {
-        if let Some(v) = self.nodes.iter().position(|&n| n == node) {
-            return Some(VAR_WORDS[v]);
+        if let Some(w) = self.find(node) {
+            return Some(w);
         }
-        if self.nodes.len() == MAX_LEAVES {
+        if self.count == MAX_LEAVES {
             return None;
         }
         self.nodes.push(node);
-        Some(VAR_WORDS[self.nodes.len() - 1])
+        self.vars.push((self.count as u8, false));
+        self.count += 1;
+        Some(VAR_WORDS[self.count - 1])
     }
 
-    /// The variable word of `node` if it is a leaf.
+    /// Ties the new leaf `node` to the variable of the leaf `to`, as its
+    /// complement when `complemented`: the caller knows that `node` equals
+    /// `to` (or its complement) as functions of the primary inputs, so the
+    /// substitution keeps every check sound. False when `node` is already a
+    /// leaf or `to` is not.
+    pub fn tie(&mut self, node: u32, to: u32, complemented: bool) -> bool {
+        if self.nodes.contains(&node) {
+            return false;
+        }
+        let Some(at) = self.nodes.iter().position(|&n| n == to) else {
+            return false;
+        };
+        let (v, c) = self.vars[at];
+        self.nodes.push(node);
+        self.vars.push((v, c ^ complemented));
+        true
+    }
+
+    /// The word of `node` if it is a leaf.
     pub fn find(&self, node: u32) -> Option<u64> {
-        self.nodes
-            .iter()
-            .position(|&n| n == node)
-            .map(|v| VAR_WORDS[v])
+        self.nodes.iter().position(|&n| n == node).map(|at| {
+            let (v, c) = self.vars[at];
+            with_phase(VAR_WORDS[v as usize], c)
+        })
     }
 
-    /// The variable number of `node` if it is a leaf.
-    pub fn position(&self, node: u32) -> Option<usize> {
-        self.nodes.iter().position(|&n| n == node)
-    }
-
-    /// Number of leaves.
+    /// Number of variables.
     pub fn len(&self) -> usize {
-        self.nodes.len()
+        self.count
     }
 
     /// True when there is no leaf.
@@ -206,16 +229,17 @@ pub fn cone_equals(
     for i in 0..explored.len() {
         let (node, expanded) = explored[i];
         let id = crate::network::NodeId(node);
-        let var = leaves.position(node).or_else(|| {
-            frontier
-                .iter()
-                .position(|&f| f == node)
-                .map(|p| leaves.len() + p)
-        });
+        // Leaves first (at most six variables, the same in every word),
+        // frontier variables after them (past six they index the words).
+        let leaf = leaves.find(node);
+        let var = frontier
+            .iter()
+            .position(|&f| f == node)
+            .map(|p| leaves.len() + p);
         for j in 0..words {
-            let w = if let Some(v) = var {
-                // Leaves first, frontier variables after them (past six
-                // they index the words).
+            let w = if let Some(w) = leaf {
+                w
+            } else if let Some(v) = var {
                 var_word(v, j)
             } else if node == 0 || !expanded {
                 0

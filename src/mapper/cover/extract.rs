@@ -5,6 +5,7 @@
 use super::dedup::CellKeys;
 use super::{Cover, FREE, INVERT, NONE};
 use crate::mapper::implementation::Source;
+use crate::mapper::witness::{Claim, NetClaims};
 use crate::netlist::{Driver, MappedNetlist, NetId, Port, StorageInstance};
 use crate::network::NodeId;
 use crate::network::NodeKind;
@@ -44,9 +45,9 @@ impl Cover<'_> {
     }
 
     /// [`Cover::into_netlist`], also returning the witness of every net: the
-    /// raw literal of the covered network it carries, or
-    /// [`crate::mapper::witness::NO_LIT`] (see [`crate::proof`]).
-    pub fn into_netlist_with_witness(mut self) -> (MappedNetlist, Vec<u32>) {
+    /// literals of the covered network it carries, each with the cut its
+    /// cells were built from (see [`crate::proof`]).
+    pub fn into_netlist_with_witness(mut self) -> (MappedNetlist, NetClaims) {
         self.cost = Vec::new();
         self.required = Vec::new();
         self.fanout_estimate = Vec::new();
@@ -61,7 +62,7 @@ impl Cover<'_> {
     }
 
     /// [`Cover::extract`] with the witness of [`Cover::into_netlist_with_witness`].
-    pub fn extract_with_witness(&self) -> (MappedNetlist, Vec<u32>) {
+    pub fn extract_with_witness(&self) -> (MappedNetlist, NetClaims) {
         let net = self.net;
         let lib = self.lib;
         let mut out = MappedNetlist {
@@ -147,6 +148,9 @@ impl Cover<'_> {
         };
         let mut local: Vec<NetId> = Vec::new();
         let mut keys = CellKeys::default();
+        // The cut each cell-made node phase was built from (a merged net
+        // carries several, see `witness`).
+        let mut cell_claims: Vec<(NetId, Claim)> = Vec::new();
         for node in 0..net.num_nodes() {
             if net.kind(NodeId(node as u32)) == NodeKind::Const {
                 for phase in 0..2 {
@@ -180,6 +184,7 @@ impl Cover<'_> {
                             &names,
                             &mut keys,
                         );
+                        cell_claims.push((net_of[i], Claim::cell(i as u32, &[node as u32])));
                     }
                     c => {
                         let leaves = self.cuts.leaves((c >> 2) as usize);
@@ -198,6 +203,7 @@ impl Cover<'_> {
                             &names,
                             &mut keys,
                         );
+                        cell_claims.push((net_of[i], Claim::cell(i as u32, leaves)));
                     }
                 }
             }
@@ -233,12 +239,14 @@ impl Cover<'_> {
                 kind: s.kind.clone(),
             });
         }
-        let mut witness = vec![crate::mapper::witness::NO_LIT; out.nets.len()];
+        // Ports and constants carry their node phases; cell-made phases
+        // carry their cuts.
         for (lit, &n) in net_of.iter().enumerate() {
-            if n != NONE {
-                witness[n as usize] = lit as u32;
+            if n != NONE && !matches!(out.nets[n as usize].driver, Driver::Cell(_)) {
+                cell_claims.push((n, Claim::port(lit as u32)));
             }
         }
+        let witness = NetClaims::new(out.nets.len(), cell_claims);
         (out, witness)
     }
 
