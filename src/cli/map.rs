@@ -19,8 +19,9 @@ pub enum GoalArg {
     Area,
     /// Least delay (then least area) of the runs tried.
     Delay,
-    /// Least area × delay of the runs tried: area recovery within 0, 10, 25
-    /// and 50 % over the least delay, and the least-area run.
+    /// Least area × delay of the runs tried (area recovery within 0, 10, 25
+    /// and 50 % over the least delay, and the least-area run), keeping the
+    /// smallest run within 0.5 % of the least area × delay.
     Balanced,
 }
 

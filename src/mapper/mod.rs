@@ -16,7 +16,8 @@
 //! 5. [`runs`]: the covers made (least area; least delay; area recovery
 //!    within several delay bounds), plus those of the largest built-in
 //!    library this one contains, measured by static timing; the goal picks
-//!    the run with the least area, delay, or area × delay.
+//!    the run with the least area, delay, or area × delay (within a
+//!    tolerance that keeps the smaller circuit in a near-tie).
 //!
 //! With [`MapOptions::optimum`], [`optimum`] adds exact minimum networks of
 //! the cut functions of up to four leaves (from the exact-synthesis
@@ -59,7 +60,8 @@ pub enum Goal {
     Area,
     /// Least delay, then least area, over the runs of [`runs`].
     Delay,
-    /// Least area × delay, then least area, over the runs of [`runs`]:
+    /// Least area among the runs of [`runs`] whose area × delay is within
+    /// [`runs::BALANCED_TOLERANCE`] of the least:
     /// area recovery within several delay bounds (the least delay, 10 %,
     /// 25 % and 50 % over it, and `delay_slack` over it) and the area run.
     #[default]
