@@ -19,6 +19,10 @@
 //!   precision of the library's delay numbers (two or three significant
 //!   digits), keeps the smaller circuit in such a near-tie.
 //!
+//! When a run's netlist has nets whose load makes them critical, the
+//! fastest run is also offered with fanout trees of buffers
+//! ([`super::fanout`]), named `RUN+buffers`.
+//!
 //! So by construction the delay goal is never slower than the other goals'
 //! results, the area goal never larger, balanced never more than the
 //! tolerance worse in area × delay, and a library never loses on the goal's
@@ -44,6 +48,8 @@ pub struct Run {
     pub delay: f64,
     /// What every net implements, for the linear-time proof.
     pub witness: CoverWitness,
+    /// Buffers added by fanout trees (see [`super::fanout`]).
+    pub buffers: usize,
 }
 
 impl Run {
@@ -62,6 +68,7 @@ impl Run {
             area,
             delay,
             witness,
+            buffers: 0,
         }
     }
 
