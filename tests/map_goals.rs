@@ -2,7 +2,8 @@
 //!
 //! Checked on every mapping: the delay goal's delay is at most the other
 //! goals' delays, the area goal's area at most the others' areas, the
-//! balanced goal's area × delay at most the others'; on a library that
+//! balanced goal's area × delay at most 0.5 % over the others' (its
+//! documented tolerance); on a library that
 //! contains all cells of another built-in library with the same numbers
 //! (ribbon3 ⊃ ribbon3-nomaj ⊃ ribbon2, cmos-le ⊃ nand-nor-inv), the goal's
 //! figure is at most the smaller library's. Delay is measured by the static
@@ -19,12 +20,12 @@
 
 mod map_support;
 
-use map_support::{operands, parity_chain, parity_tree, ripple_carry_adder};
+use map_support::{parity_chain, ripple_carry_adder};
 use ribbonmap::io::{read_netlist, ReadOptions};
 use ribbonmap::library::Library;
 use ribbonmap::mapper::{map, map_detailed, Goal, MapOptions};
 use ribbonmap::netlist::{analyze_timing, verify, MappedNetlist, Verified, VerifyMode};
-use ribbonmap::network::{Lit, Network};
+use ribbonmap::network::Network;
 use std::collections::HashSet;
 use std::path::{Path, PathBuf};
 
@@ -74,6 +75,20 @@ impl Figures {
 /// Relative tolerance for floating-point sums taken in different orders.
 fn worse(a: f64, b: f64) -> bool {
     a > b * (1.0 + 1e-9) + 1e-12
+}
+
+/// `balanced` keeps the least area among the runs within 0.5 % of the
+/// least area × delay (docs/mapping-goals.md), so its figure may exceed
+/// another result's by that much.
+const BALANCED_TOLERANCE: f64 = 0.005;
+
+/// Whether the figure `mine` of `goal` breaks the goal's promise against
+/// `theirs`.
+fn breaks(goal: Goal, mine: f64, theirs: f64) -> bool {
+    match goal {
+        Goal::Balanced => worse(mine, theirs * (1.0 + BALANCED_TOLERANCE)),
+        _ => worse(mine, theirs),
+    }
 }
 
 /// Instances whose function over their distinct input nets repeats an
@@ -128,7 +143,7 @@ fn survey(label: &str, net: &Network) -> (Vec<[Figures; 3]>, Vec<String>) {
         for (g, goal) in GOALS.iter().enumerate() {
             for (o, other) in GOALS.iter().enumerate() {
                 let (mine, theirs) = (per_goal[g].figure(*goal), per_goal[o].figure(*goal));
-                if worse(mine, theirs) {
+                if breaks(*goal, mine, theirs) {
                     violations.push(format!(
                         "{label} on {name}: goal {} gives {mine}, goal {} {theirs}",
                         goal.name(),
@@ -144,7 +159,7 @@ fn survey(label: &str, net: &Network) -> (Vec<[Figures; 3]>, Vec<String>) {
         let s = names.iter().position(|n| *n == small).expect("built-in");
         for (g, goal) in GOALS.iter().enumerate() {
             let (fb, fs) = (figures[b][g].figure(*goal), figures[s][g].figure(*goal));
-            if worse(fb, fs) {
+            if breaks(*goal, fb, fs) {
                 violations.push(format!(
                     "{label} under {}: {big} gives {fb}, its subset {small} {fs}",
                     goal.name()
@@ -261,88 +276,7 @@ fn small_ripple_adders_take_two_cells_per_bit() {
     }
 }
 
-/// An n-bit ripple-carry adder whose full adders are written in one of
-/// several textbook forms; outputs s[0..=n].
-fn textbook_adder(n: usize, form: usize) -> Network {
-    let mut net = Network::new(format!("rca{n}_form{form}"));
-    let (a, b) = operands(&mut net, n);
-    let mut c = Lit::FALSE;
-    let nand = |net: &mut Network, x: Lit, y: Lit| !net.and(x, y);
-    for i in 0..n {
-        let (x, y) = (a[i], b[i]);
-        let (s, carry) = match form {
-            // AND/OR/XOR: c' = x y + c (x ^ y).
-            0 => {
-                let p = net.xor(x, y);
-                let g = net.and(x, y);
-                let t = net.and(c, p);
-                (net.xor(p, c), net.or(g, t))
-            }
-            // AND/OR/XOR: c' = x y + x c + y c.
-            1 => {
-                let xy = net.and(x, y);
-                let xc = net.and(x, c);
-                let yc = net.and(y, c);
-                let o = net.or(xy, xc);
-                let s = net.xor(x, y);
-                (net.xor(s, c), net.or(o, yc))
-            }
-            // AND/OR/XOR: c' = (x + y) c + x y.
-            2 => {
-                let o = net.or(x, y);
-                let g = net.and(x, y);
-                let t = net.and(o, c);
-                let s = net.xor(x, y);
-                (net.xor(c, s), net.or(t, g))
-            }
-            // NAND only: the nine-NAND full adder.
-            _ => {
-                let m = nand(&mut net, x, y);
-                let p = nand(&mut net, x, m);
-                let q = nand(&mut net, y, m);
-                let h = nand(&mut net, p, q);
-                let k = nand(&mut net, h, c);
-                let r = nand(&mut net, h, k);
-                let t = nand(&mut net, c, k);
-                (nand(&mut net, r, t), nand(&mut net, k, m))
-            }
-        };
-        net.add_output(format!("s[{i}]"), s).expect("fresh name");
-        c = carry;
-    }
-    net.add_output(format!("s[{n}]"), c).expect("fresh name");
-    net
-}
-
-#[test]
-fn ripple_adders_take_at_most_two_cells_per_bit_in_every_textbook_form() {
-    let mut wrong = Vec::new();
-    for form in 0..4 {
-        for n in [1, 2, 5, 16] {
-            let cells = cells_on_ribbon3(&textbook_adder(n, form), Goal::Area);
-            if cells > 2 * n {
-                wrong.push(format!("{n} bits form {form}: {cells} cells"));
-            }
-        }
-    }
-    assert!(wrong.is_empty(), "{}", wrong.join(", "));
-}
-
-#[test]
-fn parity_takes_one_three_input_cell_per_two_inputs() {
-    // ceil((n - 1) / 2) cells: each xor3 removes two signals, an xor2 one.
-    let lib = builtin("ribbon3");
-    let mut wrong = Vec::new();
-    for n in 3..=65usize {
-        for net in [parity_chain(n), parity_tree(n)] {
-            let nl = map(&net, &lib, &options(Goal::Area)).expect("maps");
-            if nl.instances.len() != (n - 1).div_ceil(2) {
-                wrong.push(format!("{}: {} cells", net.name(), nl.instances.len()));
-            }
-        }
-    }
-    assert!(wrong.is_empty(), "{}", wrong.join(", "));
-}
+// The adder and parity shapes are checked in tests/map_shape.rs.
 
 #[test]
 fn the_outcome_names_the_winning_run_among_those_considered() {

@@ -16,7 +16,11 @@
 //! 5. [`runs`]: the covers made (least area; least delay; area recovery
 //!    within several delay bounds), plus those of the largest built-in
 //!    library this one contains, measured by static timing; the goal picks
-//!    the run with the least area, delay, or area × delay.
+//!    the run with the least area, delay, or area × delay (within a
+//!    tolerance that keeps the smaller circuit in a near-tie). One of the
+//!    runs repeats the delay pass with loads from its own previous cover
+//!    (`cover::loads`), and the fastest run is also offered with fanout
+//!    trees of buffers on its critical nets ([`fanout`]).
 //!
 //! With [`MapOptions::optimum`], [`optimum`] adds exact minimum networks of
 //! the cut functions of up to four leaves (from the exact-synthesis
@@ -28,6 +32,7 @@
 pub mod balance;
 pub mod cover;
 pub mod cuts;
+pub mod fanout;
 pub mod implementation;
 pub mod matches;
 pub mod optimum;
@@ -59,7 +64,8 @@ pub enum Goal {
     Area,
     /// Least delay, then least area, over the runs of [`runs`].
     Delay,
-    /// Least area × delay, then least area, over the runs of [`runs`]:
+    /// Least area among the runs of [`runs`] whose area × delay is within
+    /// [`runs::BALANCED_TOLERANCE`] of the least:
     /// area recovery within several delay bounds (the least delay, 10 %,
     /// 25 % and 50 % over it, and `delay_slack` over it) and the area run.
     #[default]
@@ -152,6 +158,8 @@ pub struct MapOutcome {
     /// What every net implements, for the linear-time proof
     /// ([`crate::proof::prove`]).
     pub witness: CoverWitness,
+    /// Buffers the chosen run's fanout trees added ([`fanout`]).
+    pub buffers: usize,
 }
 
 /// Maps `net` onto `lib`.
@@ -343,7 +351,13 @@ pub fn map_detailed(
         let target = best_delay * (1.0 + slack as f32);
         own.push((name, recover(cover.clone(), target, opts.area_passes)));
     }
-    drop(cover);
+    // The delay pass repeated with the loads of its own cover until its
+    // delay settles, then area recovery within that delay.
+    let settled = cover.settle_loads()?;
+    own.push((
+        "delay/loads".to_string(),
+        recover(cover, settled, opts.area_passes),
+    ));
     seconds.insert("cover".to_string(), t.elapsed().as_secs_f64());
 
     // The runs of the largest built-in library this one contains (each
@@ -355,7 +369,9 @@ pub fn map_detailed(
         for r in sub_outcome.runs {
             let name = format!("{}:{}", sub.name, r.name);
             let netlist = runs::translate(r.netlist, &sub, lib);
-            sub_runs.push(Run::measure(name, netlist, r.witness, lib));
+            let mut run = Run::measure(name, netlist, r.witness, lib);
+            run.buffers = r.buffers;
+            sub_runs.push(run);
         }
         seconds.insert("subset".to_string(), t.elapsed().as_secs_f64());
     }
@@ -377,10 +393,21 @@ pub fn map_detailed(
         })
         .collect();
     runs.extend(sub_runs);
+    // The fastest run with fanout trees on its critical nets.
+    let fastest = runs::pick(&runs, Goal::Delay);
+    if let Some(buffered) = fanout::split_critical_loads(&runs[fastest].netlist, lib) {
+        let mut witness = runs[fastest].witness.clone();
+        witness.extend_with_copies(buffered.netlist.nets.len(), &buffered.copies);
+        let name = format!("{}+buffers", runs[fastest].name);
+        let mut run = Run::measure(name, buffered.netlist, witness, lib);
+        run.buffers = buffered.copies.len();
+        runs.push(run);
+    }
     let won = runs::pick(&runs, opts.goal);
     let netlist = runs[won].netlist.clone();
     let witness = runs[won].witness.clone();
     let run = runs[won].name.clone();
+    let buffers = runs[won].buffers;
     Ok(MapOutcome {
         netlist,
         run,
@@ -390,5 +417,6 @@ pub fn map_detailed(
         cuts,
         cover_bytes,
         witness,
+        buffers,
     })
 }

@@ -17,6 +17,7 @@
 //! other's match) can end on one net. Each literal is a claim of its own,
 //! with the cut it was built from.
 
+use std::collections::HashMap;
 use crate::network::{Lit, Network};
 
 /// Marks a net or node without a recorded counterpart.
@@ -190,5 +191,31 @@ impl CoverWitness {
     /// Whether net `net` carries covered literal `lit`.
     pub fn net_carries(&self, net: u32, lit: Lit) -> bool {
         self.lits_of_net(net).any(|l| l == lit)
+    }
+
+    /// Extends the witness over buffers added after covering: the netlist
+    /// now has `nets` nets, and each `(copy, source)` (in the order the
+    /// buffers were added, so a source may be an earlier copy) is a net
+    /// driven by a buffer that reads `source`. The copy carries each literal
+    /// of its source over that literal's own node as the only leaf (a buffer
+    /// is the identity), which the local check proves like any other cut.
+    pub fn extend_with_copies(&mut self, nets: usize, copies: &[(u32, u32)]) {
+        let mut pairs: Vec<(u32, Claim)> = (0..self.net_lits.len() as u32)
+            .flat_map(|n| self.net_lits.of(n).iter().map(move |c| (n, *c)))
+            .collect();
+        let mut copied: HashMap<u32, Vec<Claim>> = HashMap::new();
+        for &(copy, source) in copies {
+            let from: Vec<Claim> = match copied.get(&source) {
+                Some(claims) => claims.clone(),
+                None => self.net_lits.of(source).to_vec(),
+            };
+            let claims: Vec<Claim> = from
+                .iter()
+                .map(|c| Claim::cell(c.lit, &[c.literal().node().0]))
+                .collect();
+            pairs.extend(claims.iter().map(|c| (copy, *c)));
+            copied.insert(copy, claims);
+        }
+        self.net_lits = NetClaims::new(nets, pairs);
     }
 }

@@ -36,6 +36,7 @@
 //!
 //! The passes live in one file each around the state type [`Cover`]:
 //! `select` (the per-node choice shared by the first two passes), `delay`,
+//! `loads` (delay passes repeated with loads from the previous cover),
 //! `area_flow`, `exact_area`, `timing` (reference counts and required
 //! times), `extract` and `dedup` (no two cells of the netlist compute the
 //! same function of the same nets).
@@ -45,6 +46,7 @@ mod dedup;
 mod delay;
 mod exact_area;
 mod extract;
+mod loads;
 mod select;
 mod timing;
 
