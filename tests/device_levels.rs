@@ -449,7 +449,7 @@ fn levels_command_reports_units_and_exit_codes() {
         .stderr(predicates::str::contains("random patterns"));
     // A library without electrical data is bad input.
     ribbonmap_cli(d)
-        .args(["levels", "fa.blif", "--lib", "ribbon3"])
+        .args(["levels", "fa.blif", "--lib", "cmos-le"])
         .assert()
         .code(2)
         .stderr(predicates::str::starts_with("error: "));

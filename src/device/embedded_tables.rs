@@ -9,38 +9,134 @@
 
 /// Each table as `(path relative to libraries/, text)`.
 const DEMO_TABLES: &[(&str, &str)] = &[
-    ("devices/demo/tables/and2_down.csv", include_str!("../../libraries/devices/demo/tables/and2_down.csv")),
-    ("devices/demo/tables/and2_up.csv", include_str!("../../libraries/devices/demo/tables/and2_up.csv")),
-    ("devices/demo/tables/and3_down.json", include_str!("../../libraries/devices/demo/tables/and3_down.json")),
-    ("devices/demo/tables/and3_up.json", include_str!("../../libraries/devices/demo/tables/and3_up.json")),
-    ("devices/demo/tables/buf_down.csv", include_str!("../../libraries/devices/demo/tables/buf_down.csv")),
-    ("devices/demo/tables/buf_up.csv", include_str!("../../libraries/devices/demo/tables/buf_up.csv")),
-    ("devices/demo/tables/inv_down.csv", include_str!("../../libraries/devices/demo/tables/inv_down.csv")),
-    ("devices/demo/tables/inv_up.csv", include_str!("../../libraries/devices/demo/tables/inv_up.csv")),
-    ("devices/demo/tables/maj3_down.json", include_str!("../../libraries/devices/demo/tables/maj3_down.json")),
-    ("devices/demo/tables/maj3_up.json", include_str!("../../libraries/devices/demo/tables/maj3_up.json")),
-    ("devices/demo/tables/minority3_down.json", include_str!("../../libraries/devices/demo/tables/minority3_down.json")),
-    ("devices/demo/tables/minority3_up.json", include_str!("../../libraries/devices/demo/tables/minority3_up.json")),
-    ("devices/demo/tables/nand2_down.csv", include_str!("../../libraries/devices/demo/tables/nand2_down.csv")),
-    ("devices/demo/tables/nand2_up.csv", include_str!("../../libraries/devices/demo/tables/nand2_up.csv")),
-    ("devices/demo/tables/nand3_down.json", include_str!("../../libraries/devices/demo/tables/nand3_down.json")),
-    ("devices/demo/tables/nand3_up.json", include_str!("../../libraries/devices/demo/tables/nand3_up.json")),
-    ("devices/demo/tables/nor2_down.csv", include_str!("../../libraries/devices/demo/tables/nor2_down.csv")),
-    ("devices/demo/tables/nor2_up.csv", include_str!("../../libraries/devices/demo/tables/nor2_up.csv")),
-    ("devices/demo/tables/nor3_down.json", include_str!("../../libraries/devices/demo/tables/nor3_down.json")),
-    ("devices/demo/tables/nor3_up.json", include_str!("../../libraries/devices/demo/tables/nor3_up.json")),
-    ("devices/demo/tables/or2_down.csv", include_str!("../../libraries/devices/demo/tables/or2_down.csv")),
-    ("devices/demo/tables/or2_up.csv", include_str!("../../libraries/devices/demo/tables/or2_up.csv")),
-    ("devices/demo/tables/or3_down.json", include_str!("../../libraries/devices/demo/tables/or3_down.json")),
-    ("devices/demo/tables/or3_up.json", include_str!("../../libraries/devices/demo/tables/or3_up.json")),
-    ("devices/demo/tables/xnor2_down.csv", include_str!("../../libraries/devices/demo/tables/xnor2_down.csv")),
-    ("devices/demo/tables/xnor2_up.csv", include_str!("../../libraries/devices/demo/tables/xnor2_up.csv")),
-    ("devices/demo/tables/xnor3_down.json", include_str!("../../libraries/devices/demo/tables/xnor3_down.json")),
-    ("devices/demo/tables/xnor3_up.json", include_str!("../../libraries/devices/demo/tables/xnor3_up.json")),
-    ("devices/demo/tables/xor2_down.csv", include_str!("../../libraries/devices/demo/tables/xor2_down.csv")),
-    ("devices/demo/tables/xor2_up.csv", include_str!("../../libraries/devices/demo/tables/xor2_up.csv")),
-    ("devices/demo/tables/xor3_down.json", include_str!("../../libraries/devices/demo/tables/xor3_down.json")),
-    ("devices/demo/tables/xor3_up.json", include_str!("../../libraries/devices/demo/tables/xor3_up.json")),
+    (
+        "devices/demo/tables/and2_down.csv",
+        include_str!("../../libraries/devices/demo/tables/and2_down.csv"),
+    ),
+    (
+        "devices/demo/tables/and2_up.csv",
+        include_str!("../../libraries/devices/demo/tables/and2_up.csv"),
+    ),
+    (
+        "devices/demo/tables/and3_down.json",
+        include_str!("../../libraries/devices/demo/tables/and3_down.json"),
+    ),
+    (
+        "devices/demo/tables/and3_up.json",
+        include_str!("../../libraries/devices/demo/tables/and3_up.json"),
+    ),
+    (
+        "devices/demo/tables/buf_down.csv",
+        include_str!("../../libraries/devices/demo/tables/buf_down.csv"),
+    ),
+    (
+        "devices/demo/tables/buf_up.csv",
+        include_str!("../../libraries/devices/demo/tables/buf_up.csv"),
+    ),
+    (
+        "devices/demo/tables/inv_down.csv",
+        include_str!("../../libraries/devices/demo/tables/inv_down.csv"),
+    ),
+    (
+        "devices/demo/tables/inv_up.csv",
+        include_str!("../../libraries/devices/demo/tables/inv_up.csv"),
+    ),
+    (
+        "devices/demo/tables/maj3_down.json",
+        include_str!("../../libraries/devices/demo/tables/maj3_down.json"),
+    ),
+    (
+        "devices/demo/tables/maj3_up.json",
+        include_str!("../../libraries/devices/demo/tables/maj3_up.json"),
+    ),
+    (
+        "devices/demo/tables/minority3_down.json",
+        include_str!("../../libraries/devices/demo/tables/minority3_down.json"),
+    ),
+    (
+        "devices/demo/tables/minority3_up.json",
+        include_str!("../../libraries/devices/demo/tables/minority3_up.json"),
+    ),
+    (
+        "devices/demo/tables/nand2_down.csv",
+        include_str!("../../libraries/devices/demo/tables/nand2_down.csv"),
+    ),
+    (
+        "devices/demo/tables/nand2_up.csv",
+        include_str!("../../libraries/devices/demo/tables/nand2_up.csv"),
+    ),
+    (
+        "devices/demo/tables/nand3_down.json",
+        include_str!("../../libraries/devices/demo/tables/nand3_down.json"),
+    ),
+    (
+        "devices/demo/tables/nand3_up.json",
+        include_str!("../../libraries/devices/demo/tables/nand3_up.json"),
+    ),
+    (
+        "devices/demo/tables/nor2_down.csv",
+        include_str!("../../libraries/devices/demo/tables/nor2_down.csv"),
+    ),
+    (
+        "devices/demo/tables/nor2_up.csv",
+        include_str!("../../libraries/devices/demo/tables/nor2_up.csv"),
+    ),
+    (
+        "devices/demo/tables/nor3_down.json",
+        include_str!("../../libraries/devices/demo/tables/nor3_down.json"),
+    ),
+    (
+        "devices/demo/tables/nor3_up.json",
+        include_str!("../../libraries/devices/demo/tables/nor3_up.json"),
+    ),
+    (
+        "devices/demo/tables/or2_down.csv",
+        include_str!("../../libraries/devices/demo/tables/or2_down.csv"),
+    ),
+    (
+        "devices/demo/tables/or2_up.csv",
+        include_str!("../../libraries/devices/demo/tables/or2_up.csv"),
+    ),
+    (
+        "devices/demo/tables/or3_down.json",
+        include_str!("../../libraries/devices/demo/tables/or3_down.json"),
+    ),
+    (
+        "devices/demo/tables/or3_up.json",
+        include_str!("../../libraries/devices/demo/tables/or3_up.json"),
+    ),
+    (
+        "devices/demo/tables/xnor2_down.csv",
+        include_str!("../../libraries/devices/demo/tables/xnor2_down.csv"),
+    ),
+    (
+        "devices/demo/tables/xnor2_up.csv",
+        include_str!("../../libraries/devices/demo/tables/xnor2_up.csv"),
+    ),
+    (
+        "devices/demo/tables/xnor3_down.json",
+        include_str!("../../libraries/devices/demo/tables/xnor3_down.json"),
+    ),
+    (
+        "devices/demo/tables/xnor3_up.json",
+        include_str!("../../libraries/devices/demo/tables/xnor3_up.json"),
+    ),
+    (
+        "devices/demo/tables/xor2_down.csv",
+        include_str!("../../libraries/devices/demo/tables/xor2_down.csv"),
+    ),
+    (
+        "devices/demo/tables/xor2_up.csv",
+        include_str!("../../libraries/devices/demo/tables/xor2_up.csv"),
+    ),
+    (
+        "devices/demo/tables/xor3_down.json",
+        include_str!("../../libraries/devices/demo/tables/xor3_down.json"),
+    ),
+    (
+        "devices/demo/tables/xor3_up.json",
+        include_str!("../../libraries/devices/demo/tables/xor3_up.json"),
+    ),
 ];
 
 /// The embedded text of the demo-kit table whose path relative to

@@ -17,8 +17,8 @@
 //! other's match) can end on one net. Each literal is a claim of its own,
 //! with the cut it was built from.
 
-use std::collections::HashMap;
 use crate::network::{Lit, Network};
+use std::collections::HashMap;
 
 /// Marks a net or node without a recorded counterpart.
 pub const NO_LIT: u32 = u32::MAX;
