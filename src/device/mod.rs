@@ -16,7 +16,6 @@
 
 pub mod characterize;
 pub mod demo_builtins;
-pub mod embedded_tables;
 pub mod kit;
 pub mod levels;
 pub mod library_write;

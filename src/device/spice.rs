@@ -80,17 +80,7 @@ pub fn load_models(
         let load = |record: &TableRecord| -> Result<ConductanceTable, SourceError> {
             let path = library_dir.join(&record.file);
             let shown = path.display().to_string();
-            // A built-in library's tables are compiled in: use them when the
-            // file is not beside the working folder.
-            let embedded = if path.exists() {
-                None
-            } else {
-                super::embedded_tables::demo_table_text(&record.file)
-            };
-            let sha = match embedded {
-                Some(text) => text_sha256(text),
-                None => super::characterize::file_sha256(&path, &shown)?,
-            };
+            let sha = super::characterize::file_sha256(&path, &shown)?;
             if sha != record.sha256 {
                 return Err(SourceError::new(
                     &shown,
@@ -104,10 +94,7 @@ pub fn load_models(
                     ),
                 ));
             }
-            match embedded {
-                Some(text) => parse_table_text(text, &record.file, &shown),
-                None => read_table(&path, &shown),
-            }
+            read_table(&path, &shown)
         };
         cells.push(Some(CellModel {
             pull_up: load(&e.pull_up)?,
@@ -173,24 +160,6 @@ impl Deck {
 /// The SPICE node of net `id`.
 pub fn node(id: u32) -> String {
     format!("n{id}")
-}
-
-/// SHA-256 of a text, as lowercase hex (the form libraries record).
-fn text_sha256(text: &str) -> String {
-    use sha2::{Digest, Sha256};
-    Sha256::digest(text.as_bytes())
-        .iter()
-        .map(|b| format!("{b:02x}"))
-        .collect()
-}
-
-/// Parses a table's text: JSON when `name` ends in `.json`, CSV otherwise.
-fn parse_table_text(text: &str, name: &str, shown: &str) -> Result<ConductanceTable, SourceError> {
-    if name.ends_with(".json") {
-        super::table_json::parse_json_table(text, shown)
-    } else {
-        super::table_csv::parse_csv_table(text, shown)
-    }
 }
 
 /// The table file text of one ribbon in the `table2D`/`table3D` layout:
