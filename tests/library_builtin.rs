@@ -126,20 +126,8 @@ fn ribbon_cells_have_two_devices_and_consistent_costs() {
     assert!(c("and3").delay.intrinsic > c("and2").delay.intrinsic);
     assert!(c("maj3").area > c("and3").area);
     assert!(c("xor3").area > c("maj3").area);
-    // Energy: since ribbon3 is characterised from the demo kit (every cell
-    // 40 aF of output capacitance, 30 aF per unit load, 0.2 V), every cell
-    // has ½·40·0.2² = 0.8 aJ own and ½·30·0.2² = 0.6 aJ per load (½CV²,
-    // common practice). The previous hand-typed library had maj3 dearer
-    // than and3 here; that bound was the old numbers', not a law.
-    for cell in &lib.cells {
-        assert!((cell.switch_energy - 0.8).abs() < 1e-9, "{}", cell.name);
-        assert!(
-            (cell.switch_energy_per_load - 0.6).abs() < 1e-9,
-            "{}",
-            cell.name
-        );
-    }
-    assert!(lib.description.contains("INVENTED"));
+    assert!(c("maj3").switch_energy > c("and3").switch_energy);
+    assert!(lib.description.contains("illustrative"));
 }
 
 #[test]
