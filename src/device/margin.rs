@@ -37,7 +37,7 @@ use super::levels::{
 };
 use crate::library::electrical::{Electrical, ElectricalData};
 use crate::library::Library;
-use crate::mapper::witness::{Claim, CoverWitness, NetClaims};
+use crate::mapper::witness::CoverWitness;
 use crate::mapper::{map_detailed, MapError, MapOptions, MapOutcome};
 use crate::netlist::{analyze_timing, Driver, Instance, MappedNetlist, NetId};
 use crate::network::Network;
@@ -602,12 +602,9 @@ fn insert_stages(
         set.insert(name.clone());
         name
     };
-    // Every claim so far, plus one per stage output below: the stage's last
-    // net carries each literal of the net it restores, over that literal's
-    // own node as the single leaf (the stage is the identity).
-    let mut claims: Vec<(u32, Claim)> = (0..netlist.nets.len() as u32)
-        .flat_map(|n| witness.net_lits.of(n).iter().map(move |c| (n, *c)))
-        .collect();
+    // The stage's last net carries each literal of the net it restores (the
+    // stage is the identity); inner nets of an inverter pair carry none.
+    let mut copies: Vec<(NetId, NetId)> = Vec::new();
     // Per restored net: the stage's nets, input side first.
     let mut stage_nets: Vec<(NetId, Vec<NetId>)> = Vec::new();
     let mut added = Vec::new();
@@ -627,10 +624,7 @@ fn insert_stages(
             // Drivers are set when the instances are placed below.
             let id = netlist.add_net(name, Driver::Constant(false));
             if last {
-                for c in witness.net_lits.of(n) {
-                    let lit = c.literal();
-                    claims.push((id, Claim::cell(c.lit, &[lit.node().0])));
-                }
+                copies.push((id, n));
             }
             chain.push(id);
             added.push(id);
@@ -677,6 +671,6 @@ fn insert_stages(
     for (i, inst) in netlist.instances.iter().enumerate() {
         netlist.nets[inst.output as usize].driver = Driver::Cell(i as u32);
     }
-    witness.net_lits = NetClaims::new(netlist.nets.len(), claims);
+    witness.extend_with_copies(netlist.nets.len(), &copies);
     added
 }
