@@ -576,8 +576,9 @@ fn mutate(input: &mut Vec<u8>, rng: &mut Random, dictionary: &[&str], seeds: &[V
 }
 
 /// Runs one reader on `bytes`. Errors are the expected outcome for most
-/// inputs; only panics, time and memory matter.
-fn run_reader(reader: Reader, bytes: &[u8], plan_dir: &Path, library: &Library) {
+/// inputs; only panics, time and memory matter. Returns whether the reader
+/// accepted the input (the share accepted shows how deep the mutants get).
+fn run_reader(reader: Reader, bytes: &[u8], plan_dir: &Path, library: &Library) -> bool {
     if reader == Reader::Aiger {
         let opts = ReadOptions::default();
         if let Ok(net) = read_netlist_bytes(bytes, "fuzz.aig", NetlistFormat::Aig, &opts) {
@@ -586,8 +587,9 @@ fn run_reader(reader: Reader, bytes: &[u8], plan_dir: &Path, library: &Library) 
             if let Err(e) = read_netlist_str(&again, "again.blif", NetlistFormat::Blif, &opts) {
                 panic!("a network read from fuzz input does not read back from BLIF: {e}");
             }
+            return true;
         }
-        return;
+        return false;
     }
     let text = match ribbonmap::diag::utf8_text("fuzz", bytes.to_vec()) {
         Ok(t) => t,
@@ -605,21 +607,23 @@ fn run_reader(reader: Reader, bytes: &[u8], plan_dir: &Path, library: &Library) 
             if let Err(e) = read_netlist_str(&again, "again.blif", NetlistFormat::Blif, &opts) {
                 panic!("a network read from fuzz input does not read back from BLIF: {e}");
             }
+            return true;
         }
+        false
     };
     match reader {
         Reader::Verilog => netlist(NetlistFormat::Verilog),
         Reader::Blif => netlist(NetlistFormat::Blif),
         Reader::Bench => netlist(NetlistFormat::Bench),
         Reader::Aiger => unreachable!("read above as bytes"),
-        Reader::Library => {
-            let _ = Library::from_json_str(&text, "fuzz.json");
-        }
-        Reader::Plan => {
-            if let Ok(plan) = Plan::parse(&text, &plan_dir.join("plan.json")) {
+        Reader::Library => Library::from_json_str(&text, "fuzz.json").is_ok(),
+        Reader::Plan => match Plan::parse(&text, &plan_dir.join("plan.json")) {
+            Ok(plan) => {
                 let _ = plan.jobs();
+                true
             }
-        }
+            Err(_) => false,
+        },
         Reader::TableCsv | Reader::TableJson => {
             let table = if reader == Reader::TableCsv {
                 parse_csv_table(&text, "fuzz.csv")
@@ -643,14 +647,23 @@ fn run_reader(reader: Reader, bytes: &[u8], plan_dir: &Path, library: &Library) 
                 let outside: Vec<f64> = spans.iter().map(|&(lo, _)| lo - 1.0).collect();
                 let _ = table.conductance(&middle);
                 let _ = table.conductance(&outside);
+                true
+            } else {
+                false
             }
         }
         Reader::Results => {
+            // Accepted when every line is a valid result line.
+            let mut all = true;
             for (i, line) in text.lines().enumerate() {
-                if let Ok(record) = check_result_line("fuzz.jsonl", i, line) {
-                    let _ = record.to_json_line();
+                match check_result_line("fuzz.jsonl", i, line) {
+                    Ok(record) => {
+                        let _ = record.to_json_line();
+                    }
+                    Err(_) => all = false,
                 }
             }
+            all
         }
     }
 }
@@ -704,6 +717,7 @@ fn settings() -> Settings {
 #[derive(Default)]
 struct Tally {
     inputs: u64,
+    accepted: u64,
     panics: u64,
     slow: u64,
     heavy: u64,
@@ -759,7 +773,7 @@ fn main() {
     }
 
     println!(
-        "reader   inputs   panics  over {:.0} CPU-s  over {:.0} MB  slowest CPU-s  slowest wall s  peak MB  MB read",
+        "reader      inputs  accepted   panics  over {:.0} CPU-s  over {:.0} MB  slowest CPU-s  slowest wall s  peak MB  MB read",
         settings.seconds, settings.megabytes
     );
     let mut total_failures = 0;
@@ -816,6 +830,9 @@ fn main() {
             tally.slowest_wall = tally.slowest_wall.max(wall);
             tally.heaviest = tally.heaviest.max(peak);
             let mut keep = None;
+            if matches!(outcome, Ok(true)) {
+                tally.accepted += 1;
+            }
             if outcome.is_err() {
                 tally.panics += 1;
                 keep = Some("panic");
@@ -858,9 +875,10 @@ fn main() {
         let _ = std::fs::remove_file(&current);
         total_failures += tally.panics + tally.slow + tally.heavy;
         println!(
-            "{:<8} {:>7}  {:>7}  {:>12}  {:>10}  {:>13.2}  {:>14.3}  {:>7.1}  {:>7.1}",
+            "{:<10} {:>7}  {:>8}  {:>7}  {:>12}  {:>10}  {:>13.2}  {:>14.3}  {:>7.1}  {:>7.1}",
             reader.name(),
             tally.inputs,
+            tally.accepted,
             tally.panics,
             tally.slow,
             tally.heavy,
