@@ -190,3 +190,63 @@ fn storage_start_values_are_written_back() {
         assert_eq!(starts(&back), starts(&net));
     }
 }
+
+/// A design named after a cell it is mapped onto (the flip-flop module
+/// `dff` of issue 18 on ribbon3, whose storage cell is `dff`; an inverter
+/// module `inv`) reads back from Verilog: the writer names the module
+/// `NAME_top`, since a module instantiating its own name would contain
+/// itself (common practice: Verilog elaboration forbids recursion), and the
+/// reader takes such a self-instance in an older file as the cell. The
+/// circuits are invented; equality is checked by random simulation.
+#[test]
+fn designs_named_after_their_cells_read_back() {
+    let lib = ribbon3();
+    let dir = tempfile::tempdir().unwrap();
+    for (name, text) in [
+        (
+            "dff",
+            "module dff(D, CK, Q); input D, CK; output Q; reg q; initial q <= 1'b0;\n\
+             always @(posedge CK) q <= D; assign #1 Q = q; endmodule\n",
+        ),
+        (
+            "inv",
+            "module inv(a, y); input a; output y; assign y = ~a; endmodule\n",
+        ),
+    ] {
+        let source = dir.path().join(format!("{name}.v"));
+        std::fs::write(&source, text).unwrap();
+        let net = read_netlist(&source, &ReadOptions::default()).unwrap();
+        for back in round_trip(&net, &lib, Goal::Area) {
+            assert!(
+                back.name() == name || back.name() == format!("{name}_top"),
+                "{}",
+                back.name()
+            );
+        }
+        let mapped = map(&net, &lib, &MapOptions::default()).unwrap();
+        assert!(mapped
+            .write_verilog(&lib)
+            .contains(&format!("module {name}_top (")));
+    }
+    // An inverter module written before the rename: `inv` instantiating
+    // ribbon3's `inv` cell reads as one inverter, and without the library
+    // it is still refused as a module that instantiates itself.
+    let old = dir.path().join("old.v");
+    std::fs::write(
+        &old,
+        "// mapped onto library ribbon3\nmodule inv (a, y);\n  input a;\n  output y;\n  inv g0 (.a(a), .y(y));\nendmodule\n",
+    )
+    .unwrap();
+    let opts = ReadOptions {
+        library: Some(&lib),
+        ..ReadOptions::default()
+    };
+    let back = read_netlist(&old, &opts).unwrap();
+    let source = dir.path().join("inv.v");
+    let net = read_netlist(&source, &ReadOptions::default()).unwrap();
+    assert_eq!(
+        verify(&net, &back, VerifyMode::Sim),
+        Ok(Verified::Simulated)
+    );
+    assert!(read_netlist(&old, &ReadOptions::default()).is_err());
+}

@@ -9,7 +9,7 @@ use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK};
 use crate::cli::netlist_args::NetlistArgs;
 use crate::mapper::{map_detailed, Goal, MapOptions};
 use crate::netlist::{analyze_timing, verify, Report, VerifyMode};
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 use std::time::Instant;
 
 /// Mapping goal on the command line.
@@ -232,8 +232,8 @@ pub fn run(args: Args) -> CmdResult {
     let t = Instant::now();
     if let (Some(path), Some(ext)) = (&args.output, &out_kind) {
         let bytes = match ext.as_str() {
-            "blif" => netlist.write_blif(&lib).into_bytes(),
-            "v" => netlist.write_verilog(&lib).into_bytes(),
+            "blif" => with_library_file(netlist.write_blif(&lib), "#", &args.lib, path),
+            "v" => with_library_file(netlist.write_verilog(&lib), "//", &args.lib, path),
             // AIGER holds only AND gates: the mapped cells' logic, with
             // the library named in the comment section.
             aiger => crate::io::write_aiger(
@@ -329,8 +329,11 @@ pub fn run(args: Args) -> CmdResult {
     match &margin {
         Some(m) if !m.holds => {
             eprintln!(
-                "ribbonmap: {} nets keep less than {} mV: {}",
-                m.failing_nets.len(),
+                "ribbonmap: {} less than {} mV: {}",
+                match m.failing_nets.len() {
+                    1 => "1 net keeps".to_string(),
+                    n => format!("{n} nets keep"),
+                },
                 m.min_margin_v * 1e3,
                 super::margin::list(&m.failing_nets)
             );
@@ -338,4 +341,33 @@ pub fn run(args: Args) -> CmdResult {
         }
         _ => Ok(EXIT_OK),
     }
+}
+
+/// `text` (a mapped netlist whose first line records the library's name)
+/// with a second header line recording the library's file when `lib_spec`
+/// is a file rather than a built-in name, so `inspect` and `equiv` can read
+/// the netlist back without `--lib` (docs/netlist-formats.md). The file is
+/// written relative to the netlist's folder when it lies below it, else as
+/// an absolute path.
+fn with_library_file(text: String, marker: &str, lib_spec: &str, output: &Path) -> Vec<u8> {
+    if crate::library::Library::builtin_names().contains(&lib_spec) {
+        return text.into_bytes();
+    }
+    let lib_path = Path::new(lib_spec);
+    let absolute = std::fs::canonicalize(lib_path).unwrap_or_else(|_| lib_path.to_path_buf());
+    let folder = output
+        .parent()
+        .filter(|p| !p.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let shown = std::fs::canonicalize(folder)
+        .ok()
+        .and_then(|f| absolute.strip_prefix(f).ok().map(Path::to_path_buf))
+        .unwrap_or(absolute);
+    let line = crate::io::library_file_line(marker, &shown.to_string_lossy());
+    let at = text.find('\n').map_or(text.len(), |i| i + 1);
+    let mut out = String::with_capacity(text.len() + line.len());
+    out.push_str(&text[..at]);
+    out.push_str(&line);
+    out.push_str(&text[at..]);
+    out.into_bytes()
 }

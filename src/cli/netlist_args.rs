@@ -54,25 +54,49 @@ impl NetlistArgs {
 
 /// The library to read mapped netlists with: the one `--lib` names, else the
 /// first one recorded in a header of `netlists` (with a note on standard
-/// error saying so), else none.
+/// error saying so), else none. A recorded library file is read relative to
+/// the netlist's folder and must still hold the library of the recorded
+/// name; without a file, the name is a built-in library's.
 pub fn library_for(lib: Option<&str>, netlists: &[&Path]) -> Result<Option<Library>, CliError> {
     if let Some(spec) = lib {
         return super::common::load_library(spec).map(Some);
     }
     for path in netlists {
-        if let Some(name) = recorded_library(path) {
-            let library = super::common::load_library(&name).map_err(|e| {
-                CliError::Input(format!(
-                    "{}: the header records library '{name}', which cannot be loaded ({e}); give --lib",
-                    path.display()
-                ))
-            })?;
-            eprintln!(
-                "note: using library '{name}' recorded in the header of {} (--lib chooses another)",
+        let Some(recorded) = recorded_library(path) else {
+            continue;
+        };
+        let name = &recorded.name;
+        let cannot = |e: String| {
+            CliError::Input(format!(
+                "{}: the header records library '{name}', which cannot be loaded ({e}); give --lib",
                 path.display()
-            );
-            return Ok(Some(library));
-        }
+            ))
+        };
+        let (library, shown) = match &recorded.file {
+            Some(file) => {
+                let full = path.parent().unwrap_or(Path::new("")).join(file);
+                let spec = full.to_string_lossy().to_string();
+                let library =
+                    super::common::load_library(&spec).map_err(|e| cannot(e.to_string()))?;
+                if library.name != *name {
+                    return Err(cannot(format!(
+                        "{} now holds library '{}'",
+                        full.display(),
+                        library.name
+                    )));
+                }
+                (library, format!("'{name}' from {}", full.display()))
+            }
+            None => (
+                super::common::load_library(name).map_err(|e| cannot(e.to_string()))?,
+                format!("'{name}'"),
+            ),
+        };
+        eprintln!(
+            "note: using library {shown} recorded in the header of {} (--lib chooses another)",
+            path.display()
+        );
+        return Ok(Some(library));
     }
     Ok(None)
 }

@@ -46,7 +46,7 @@ mod verilog_write;
 pub use aiger_write::write_aiger;
 pub use blif_read::IGNORED_COMMANDS as BLIF_IGNORED_COMMANDS;
 pub use blif_write::write_blif;
-pub use header::{recorded_library, recorded_library_in};
+pub use header::{library_file_line, recorded_library, recorded_library_in, RecordedLibrary};
 pub use limits::{DEFAULT_MAX_NETS, MAX_EXPRESSION_WIDTH};
 pub use summary::{output_supports, summarize, FanoutEntry, Summary, SupportEntry};
 pub use verilog_write::{identifier as verilog_identifier, write_verilog};

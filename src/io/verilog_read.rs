@@ -31,6 +31,7 @@ use rustc_hash::{FxHashMap, FxHashSet};
 /// Reads structural Verilog `text` (named `file` in errors).
 pub fn read(text: &str, file: &str, opts: &ReadOptions) -> Result<Network, SourceError> {
     let modules = parse(text, file)?;
+    let cells = CellLookup::new(opts);
     let mut by_name: FxHashMap<&str, usize> = FxHashMap::default();
     for (i, m) in modules.iter().enumerate() {
         if by_name.insert(m.name, i).is_some() {
@@ -61,9 +62,11 @@ pub fn read(text: &str, file: &str, opts: &ReadOptions) -> Result<Network, Sourc
         None => {
             let used: FxHashSet<&str> = modules
                 .iter()
-                .flat_map(|m| m.items.iter())
-                .filter_map(|it| match it {
-                    Item::Instance { module, .. } => Some(*module),
+                .flat_map(|m| m.items.iter().map(move |it| (m.name, it)))
+                .filter_map(|(within, it)| match it {
+                    Item::Instance { module, .. } if !is_own_cell(within, module, &cells) => {
+                        Some(*module)
+                    }
                     _ => None,
                 })
                 .collect();
@@ -100,12 +103,12 @@ pub fn read(text: &str, file: &str, opts: &ReadOptions) -> Result<Network, Sourc
     };
     let mut flat = Flat::new(file);
     flat.set_max_nets(opts.max_nets());
-    check_sizes(&flat, &modules, &by_name, top)?;
+    check_sizes(&flat, &modules, &by_name, top, &cells)?;
     let mut e = Elaborator {
         modules: &modules,
         by_name,
         flat,
-        cells: CellLookup::new(opts),
+        cells,
         active: Vec::new(),
         unnamed: 0,
         inits: Vec::new(),
@@ -127,6 +130,14 @@ pub fn read(text: &str, file: &str, opts: &ReadOptions) -> Result<Network, Sourc
     e.flat.build()
 }
 
+/// True when module `within` instantiates `module` of its own name and a
+/// library or storage cell has that name: a module cannot contain itself,
+/// so the instance is the cell (a design named after a cell it uses, such
+/// as a flip-flop module `dff` built around the library's `dff`).
+fn is_own_cell(within: &str, module: &str, cells: &CellLookup) -> bool {
+    within == module && cells.has_cell(module)
+}
+
 /// Refuses, before elaboration, a hierarchy whose flattened declarations
 /// and statements would exceed the net limit ([`limits::check_hierarchy`]).
 fn check_sizes(
@@ -134,6 +145,7 @@ fn check_sizes(
     modules: &[Module],
     by_name: &FxHashMap<&str, usize>,
     top: usize,
+    cells: &CellLookup,
 ) -> Result<(), SourceError> {
     let sizes: Vec<ModuleSize> = modules
         .iter()
@@ -154,7 +166,11 @@ fn check_sizes(
                 } => Part {
                     own: 1,
                     loc: *module_loc,
-                    child: by_name.get(module).copied(),
+                    child: if is_own_cell(m.name, module, cells) {
+                        None
+                    } else {
+                        by_name.get(module).copied()
+                    },
                 },
                 other => Part {
                     own: 1,
@@ -698,7 +714,9 @@ impl<'a, 'm, 'o> Elaborator<'a, 'm, 'o> {
         conns: &Conns<'a>,
     ) -> Result<(), SourceError> {
         if let Some(&child) = self.by_name.get(module) {
-            return self.module_instance(scope, child, module_loc, name, conns);
+            if !is_own_cell(scope.module.name, module, &self.cells) {
+                return self.module_instance(scope, child, module_loc, name, conns);
+            }
         }
         if let Some(cell) = self.cells.cell(module) {
             let pins: Vec<&str> = std::iter::once(cell.output.as_str())

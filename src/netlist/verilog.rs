@@ -10,6 +10,8 @@
 //! `initial q = 1'b0;` on its output net, which the Verilog reader reads back
 //! as the element's initial value (don't-care and unknown start values are
 //! left out, as Verilog has no constant for them that the reader takes).
+//! A design named after a library cell (a flip-flop module `dff`) is
+//! written as `NAME_top`, so the module never instantiates its own name.
 
 use super::{Driver, MappedNetlist};
 use crate::io::verilog_identifier as identifier;
@@ -31,7 +33,12 @@ pub(super) fn write(nl: &MappedNetlist, lib: &Library) -> String {
     ports.extend(clocks.iter().map(|c| identifier(c)));
     ports.extend(nl.outputs.iter().map(|p| identifier(&p.name)));
     let _ = writeln!(s, "// mapped onto library {}", nl.library);
-    let _ = writeln!(s, "module {} ({});", identifier(&nl.name), ports.join(", "));
+    let _ = writeln!(
+        s,
+        "module {} ({});",
+        identifier(&module_name(nl, lib)),
+        ports.join(", ")
+    );
     for p in &nl.inputs {
         let _ = writeln!(s, "  input {};", identifier(&p.name));
     }
@@ -115,6 +122,20 @@ pub(super) fn write(nl: &MappedNetlist, lib: &Library) -> String {
     }
     s.push_str("endmodule\n");
     s
+}
+
+/// The module's name: the design's, unless a cell of the library (or the
+/// fallback storage cell `dff`) has that name, when `_top` is added until it
+/// is not (a module that instantiated a cell of its own name would contain
+/// itself).
+fn module_name(nl: &MappedNetlist, lib: &Library) -> String {
+    let taken =
+        |name: &str| name == "dff" || lib.cell(name).is_some() || lib.storage_cell(name).is_some();
+    let mut name = nl.name.clone();
+    while taken(&name) {
+        name.push_str("_top");
+    }
+    name
 }
 
 /// Clock nets of storage elements that are not primary inputs.
