@@ -23,6 +23,8 @@ fn stderr(out: &std::process::Output) -> String {
 }
 
 const C17: &str = "tests/data/reference/netlists/iscas85/c17.v";
+/// A characterised library of the repository (levels, spice).
+const DEMO_LIB: &str = "libraries/demo-kit-ribbon3.json";
 
 #[test]
 fn each_format_option_lists_exactly_what_the_command_prints() {
@@ -116,6 +118,14 @@ fn absurd_counts_are_refused_with_the_allowed_range() {
         (
             vec!["exact", "0xE8", "--inputs", "3", "--max-steps", "1000"],
             "1..=16",
+        ),
+        (
+            vec!["levels", "--lib", DEMO_LIB, C17, "--patterns", "0"],
+            "1..=16777216",
+        ),
+        (
+            vec!["levels", "--lib", DEMO_LIB, C17, "--patterns", "16777217"],
+            "1..=16777216",
         ),
     ] {
         let out = ribbonmap(&args);
@@ -425,4 +435,275 @@ fn old_option_names_still_work_for_one_release_with_a_note() {
         !help.contains("--optimize") && !help.contains("--optimum"),
         "{help}"
     );
+}
+
+/// Times that would overflow a timer or a simulator run are refused with
+/// the allowed range, on one line, before any work (exit 2, the
+/// exit-code contract of docs/exit-codes.md).
+#[test]
+fn absurd_times_are_refused_with_the_allowed_range() {
+    let dir = tempfile::tempdir().unwrap();
+    let deck = dir.path().join("d.cir");
+    let deck = deck.to_str().unwrap();
+    for (args, range) in [
+        (
+            vec!["exact", "0xE8", "--inputs", "3", "--time-limit", "1e300"],
+            "at most 31536000",
+        ),
+        (
+            vec!["exact", "0xE8", "--inputs", "3", "--time-limit", "inf"],
+            "at most 31536000",
+        ),
+        (
+            vec![
+                "spice",
+                "--map",
+                "--lib",
+                DEMO_LIB,
+                C17,
+                "-o",
+                deck,
+                "--stop-ps",
+                "1e300",
+            ],
+            "at most 1000000 ps",
+        ),
+        (
+            vec![
+                "spice",
+                "--map",
+                "--lib",
+                DEMO_LIB,
+                C17,
+                "-o",
+                deck,
+                "--stop-ps",
+                "NaN",
+            ],
+            "at most 1000000 ps",
+        ),
+        (
+            vec![
+                "spice",
+                "--map",
+                "--lib",
+                DEMO_LIB,
+                C17,
+                "-o",
+                deck,
+                "--stop-ps",
+                "5",
+            ],
+            "after the step ends (10.1 ps)",
+        ),
+    ] {
+        let out = ribbonmap(&args);
+        let text = stderr(&out);
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {text}");
+        assert!(text.contains(range), "{args:?}: {text}");
+        assert_eq!(text.lines().count(), 1, "{args:?}: {text}");
+        assert!(out.stdout.is_empty(), "{args:?}");
+    }
+    assert!(!std::path::Path::new(deck).exists());
+}
+
+/// `levels` counts in words that agree with the number: one inverter is
+/// "1 cell" (an invented one-gate netlist; its two nets are `a` and `y`).
+#[test]
+fn levels_counts_agree_with_their_nouns() {
+    let dir = tempfile::tempdir().unwrap();
+    let net = dir.path().join("one.v");
+    std::fs::write(
+        &net,
+        "module one(a, y); input a; output y; assign y = ~a; endmodule\n",
+    )
+    .unwrap();
+    let out = ribbonmap(&["levels", "--lib", DEMO_LIB, net.to_str().unwrap()]);
+    let text = String::from_utf8_lossy(&out.stdout).into_owned();
+    assert!(out.status.success(), "{}", stderr(&out));
+    assert!(text.contains(": 1 cell, 2 nets read"), "{text}");
+    assert!(
+        text.contains("logic failures  0 net-patterns on 0 patterns"),
+        "{text}"
+    );
+    assert!(!text.contains("1 cells"), "{text}");
+}
+
+/// `generate -o x.bench` names the formats it writes; no internal enum
+/// name shows.
+#[test]
+fn generate_refuses_bench_output_naming_what_it_writes() {
+    let dir = tempfile::tempdir().unwrap();
+    let out_path = dir.path().join("x.bench");
+    let out = ribbonmap(&[
+        "generate",
+        "adder",
+        "-w",
+        "4",
+        "-o",
+        out_path.to_str().unwrap(),
+    ]);
+    let text = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{text}");
+    assert!(text.contains("BENCH files are read, not written"), "{text}");
+    assert!(text.contains(".blif, .v, .aag or .aig"), "{text}");
+    assert!(!text.contains("Bench"), "{text}");
+    assert!(!out_path.exists());
+}
+
+/// A generated benchmark the generator refuses is named with the plan's
+/// file, line and column (docs/exit-codes.md), before any job runs.
+#[test]
+fn study_names_the_place_of_a_bad_generated_benchmark() {
+    let dir = tempfile::tempdir().unwrap();
+    let plan = dir.path().join("plan.json");
+    std::fs::write(
+        &plan,
+        "{\"benchmarks\": [{\"generate\": \"parity\", \"width\": 3},\n  {\"generate\": \"adder\", \"width\": 100000}],\n \"libraries\": [\"ribbon3\"]}",
+    )
+    .unwrap();
+    let results = dir.path().join("r.jsonl");
+    let out = ribbonmap(&[
+        "study",
+        plan.to_str().unwrap(),
+        "-o",
+        results.to_str().unwrap(),
+    ]);
+    let text = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{text}");
+    assert!(
+        text.starts_with(&format!("error: {}:2:16: ", plan.display())),
+        "{text}"
+    );
+    assert!(text.contains("width 100000"), "{text}");
+    assert!(!results.exists());
+    // An absolute path that matches nothing is not said to be relative.
+    let missing = dir.path().join("missing.blif");
+    std::fs::write(
+        &plan,
+        format!(
+            "{{\"benchmarks\": [\"{}\"], \"libraries\": [\"ribbon3\"]}}",
+            missing.display()
+        ),
+    )
+    .unwrap();
+    let out = ribbonmap(&[
+        "study",
+        plan.to_str().unwrap(),
+        "-o",
+        results.to_str().unwrap(),
+    ]);
+    let text = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{text}");
+    assert!(text.contains("matches no file"), "{text}");
+    assert!(!text.contains("relative to"), "{text}");
+}
+
+/// A netlist mapped on a library file records the file beside the name, so
+/// `inspect` and `equiv` read it back without `--lib` from any folder; a
+/// file that no longer holds the recorded library is refused
+/// (docs/netlist-formats.md). The library is ribbon2's file renamed.
+#[test]
+fn a_library_file_is_recorded_and_found_again() {
+    let dir = tempfile::tempdir().unwrap();
+    let lib_dir = dir.path().join("libs");
+    std::fs::create_dir(&lib_dir).unwrap();
+    let lib = lib_dir.join("mine.json");
+    let text = std::fs::read_to_string("libraries/ribbon2.json").unwrap();
+    let mut value: serde_json::Value = serde_json::from_str(&text).unwrap();
+    value["name"] = "mine".into();
+    std::fs::write(&lib, value.to_string()).unwrap();
+    let c17 = std::fs::canonicalize(C17).unwrap();
+    let mapped = dir.path().join("c17_mine.v");
+    let out = ribbonmap(&[
+        "map",
+        c17.to_str().unwrap(),
+        "--lib",
+        lib.to_str().unwrap(),
+        "--verify",
+        "none",
+        "-o",
+        mapped.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let written = std::fs::read_to_string(&mapped).unwrap();
+    let mut head = written.lines();
+    assert_eq!(head.next(), Some("// mapped onto library mine"));
+    assert_eq!(head.next(), Some("// library file libs/mine.json"));
+    // From another folder, without --lib.
+    let elsewhere = tempfile::tempdir().unwrap();
+    let cache = tempfile::tempdir().unwrap();
+    let run = |args: &[&str]| {
+        Command::cargo_bin("ribbonmap")
+            .unwrap()
+            .env("RIBBONMAP_CACHE_DIR", cache.path())
+            .current_dir(elsewhere.path())
+            .args(args)
+            .output()
+            .unwrap()
+    };
+    let out = run(&["equiv", c17.to_str().unwrap(), mapped.to_str().unwrap()]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    assert!(
+        stderr(&out).contains("using library 'mine' from "),
+        "{}",
+        stderr(&out)
+    );
+    let out = run(&["inspect", mapped.to_str().unwrap()]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    // The file now holds another library: refused, asking for --lib.
+    value["name"] = "other".into();
+    std::fs::write(&lib, value.to_string()).unwrap();
+    let out = run(&["inspect", mapped.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(2));
+    let text = stderr(&out);
+    assert!(text.contains("now holds library 'other'"), "{text}");
+    assert!(text.contains("give --lib"), "{text}");
+    assert_eq!(text.lines().count(), 1, "{text}");
+}
+
+/// Empty and non-UTF-8 inputs the earlier checks missed: a port map with a
+/// byte that is not UTF-8 is located at its line and column, an empty plan
+/// at 1:1, and result files without a single result line are refused
+/// (docs/exit-codes.md: one line, exit 2).
+#[test]
+fn empty_and_undecodable_inputs_are_located() {
+    let dir = tempfile::tempdir().unwrap();
+    let ports = dir.path().join("ports.map");
+    std::fs::write(&ports, b"G1 G1\nG2 \xff\n").unwrap();
+    let out = ribbonmap(&["equiv", C17, C17, "--ports", ports.to_str().unwrap()]);
+    let text = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{text}");
+    assert!(
+        text.starts_with(&format!(
+            "error: {}:2:4: byte 0xFF is not UTF-8",
+            ports.display()
+        )),
+        "{text}"
+    );
+    let plan = dir.path().join("plan.json");
+    std::fs::write(&plan, "  \n").unwrap();
+    let out = ribbonmap(&[
+        "study",
+        plan.to_str().unwrap(),
+        "-o",
+        dir.path().join("r.jsonl").to_str().unwrap(),
+    ]);
+    let text = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{text}");
+    assert!(
+        text.starts_with(&format!(
+            "error: {}:1:1: the plan file is empty",
+            plan.display()
+        )),
+        "{text}"
+    );
+    let results = dir.path().join("empty.jsonl");
+    std::fs::write(&results, "").unwrap();
+    let out = ribbonmap(&["tabulate", results.to_str().unwrap()]);
+    let text = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{text}");
+    assert!(text.contains("no result lines to tabulate"), "{text}");
+    assert_eq!(text.lines().count(), 1, "{text}");
+    assert!(out.stdout.is_empty());
 }

@@ -74,9 +74,9 @@ fn mean_power_nw(ch: &Characterization, cell: &crate::device::CellCharacter) -> 
 
 fn summary_text(ch: &Characterization, output: &Path) -> String {
     let mut s = format!(
-        "library   {} ({} cells) -> {}\nsupply    {} V, logic inputs {} V / {} V, unit load {} aF\n\n",
+        "library   {} ({}) -> {}\nsupply    {} V, logic inputs {} V / {} V, unit load {} aF\n\n",
         ch.kit.name,
-        ch.cells.len(),
+        super::common::counted(ch.cells.len() as u64, "cell"),
         output.display(),
         ch.kit.supply_v,
         ch.kit.logic_low_v,

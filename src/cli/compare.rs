@@ -14,7 +14,7 @@ use std::path::{Path, PathBuf};
 /// Arguments of `ribbonmap compare`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Netlists to map (.blif, .v, .bench).
+    /// Netlists to map (.blif, .v, .bench, .aag, .aig).
     #[arg(required = true, value_name = "NETLIST")]
     netlists: Vec<PathBuf>,
     /// A library (built-in name or file); repeat for each library. Ratios
@@ -48,7 +48,12 @@ pub struct Args {
     #[arg(long, value_name = "OUT.svg")]
     chart: Option<PathBuf>,
     /// Metric the chart shows.
-    #[arg(long = "chart-metric", value_enum, default_value = "cells")]
+    #[arg(
+        long = "chart-metric",
+        value_name = "METRIC",
+        value_enum,
+        default_value = "cells"
+    )]
     chart_metric: Metric,
     /// Worker threads, 1 to 1024 (default: one per core).
     #[arg(long, value_name = "N", value_parser = clap::builder::RangedU64ValueParser::<usize>::new().range(1..=1024))]

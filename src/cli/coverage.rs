@@ -9,7 +9,8 @@ use std::collections::BTreeSet;
 /// Arguments of `ribbonmap coverage`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Library: a built-in name or a library file; repeat to compare.
+    /// Library: a built-in name or a library file; repeat to compare
+    /// (default: ribbon3).
     #[arg(long = "lib", value_name = "LIB")]
     pub libs: Vec<String>,
     /// Number of inputs of the functions tabulated (3 or 4).

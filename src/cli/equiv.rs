@@ -59,8 +59,9 @@ fn port_matching(spec: &str) -> Result<PortMatching, CliError> {
         "name" => Ok(PortMatching::ByName),
         "order" => Ok(PortMatching::ByOrder),
         file => {
-            let text = std::fs::read_to_string(file)
+            let bytes = std::fs::read(file)
                 .map_err(|e| CliError::Input(format!("{file}: cannot read the port map: {e}")))?;
+            let text = crate::diag::utf8_text(file, bytes)?;
             Ok(PortMatching::Map(parse_port_map(&text, file)?))
         }
     }

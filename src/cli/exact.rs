@@ -6,6 +6,10 @@ use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK, EXIT_UNDECIDED};
 use crate::exact::{gates_from_library, synthesize, ExactError, ExactOptions, Objective};
 use std::time::{Duration, Instant};
 
+/// The longest `--time-limit`, seconds (a year); longer values, like
+/// infinity, are refused rather than overflowing the timer.
+const MAX_TIME_LIMIT_SECONDS: f64 = 31_536_000.0;
+
 /// What `--objective` minimises.
 #[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
 pub enum ObjectiveArg {
@@ -38,7 +42,8 @@ pub struct Args {
     /// Stop each SAT call after about this many conflicts.
     #[arg(long, value_name = "N")]
     pub conflict_limit: Option<u64>,
-    /// Stop the search after this many seconds.
+    /// Stop the search after this many seconds (above 0, at most a year:
+    /// 31,536,000).
     #[arg(long, value_name = "SECONDS")]
     pub time_limit: Option<f64>,
     /// Largest number of cells to try (1 to 16).
@@ -86,9 +91,9 @@ pub fn run(args: Args) -> CmdResult {
         .map(|t| crate::truth::parse_truth_word(t, args.inputs).map_err(CliError::Input))
         .collect::<Result<Vec<u64>, CliError>>()?;
     let time_limit = match args.time_limit {
-        Some(s) if !(s.is_finite() && s > 0.0) => {
+        Some(s) if !(s > 0.0 && s <= MAX_TIME_LIMIT_SECONDS) => {
             return Err(CliError::Input(format!(
-                "--time-limit {s}: expected a positive number of seconds"
+                "--time-limit {s:?}: expected a number of seconds above 0 and at most {MAX_TIME_LIMIT_SECONDS} (a year)"
             )))
         }
         Some(s) => Some(Duration::from_secs_f64(s)),

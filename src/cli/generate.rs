@@ -106,12 +106,21 @@ pub fn run(args: Args) -> CmdResult {
     let format = match (args.output_format, &args.output) {
         (Some(f), _) => f.into(),
         (None, None) => NetlistFormat::Blif,
-        (None, Some(path)) => NetlistFormat::from_path(path).ok_or_else(|| {
-            CliError::Input(format!(
-                "{}: cannot tell the output format from the file name (expected .blif, .v, .aag or .aig, or --output-format)",
-                path.display()
-            ))
-        })?,
+        (None, Some(path)) => match NetlistFormat::from_path(path) {
+            Some(NetlistFormat::Bench) => {
+                return Err(CliError::Input(format!(
+                    "{}: BENCH files are read, not written (expected .blif, .v, .aag or .aig, or --output-format)",
+                    path.display()
+                )))
+            }
+            Some(format) => format,
+            None => {
+                return Err(CliError::Input(format!(
+                    "{}: cannot tell the output format from the file name (expected .blif, .v, .aag or .aig, or --output-format)",
+                    path.display()
+                )))
+            }
+        },
     };
     let text = if format.is_aiger() {
         // AIGER keeps the description in its comment section.

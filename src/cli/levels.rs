@@ -2,7 +2,7 @@
 //! that every net keeps its logic level (static voltages from the cells'
 //! conductance tables, margins to the receivers' thresholds).
 
-use super::common::load_library;
+use super::common::{counted, load_library};
 use super::spice::load_library_models;
 use super::{CliError, CmdResult, EXIT_NEGATIVE, EXIT_OK};
 use crate::cli::netlist_args::NetlistArgs;
@@ -21,21 +21,22 @@ const WEAKEST_SHOWN: usize = 10;
 pub enum LevelsFormat {
     /// Aligned text for a terminal.
     Text,
-    /// JSON.
+    /// JSON (fields in docs/device-data.md).
     Json,
 }
 
 /// Arguments of `ribbonmap levels`.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// The netlist (.blif, .v, .bench); it is mapped onto the library first.
+    /// The netlist (.blif, .v, .bench, .aag, .aig); it is mapped onto the library first.
     pub netlist: PathBuf,
     /// A characterised library file (written by `ribbonmap characterize`).
     #[arg(long, value_name = "LIB")]
     pub lib: String,
-    /// Random patterns when the netlist has more than 16 inputs (up to
+    /// Random patterns when the netlist has more than 16 inputs (1 to
     /// 16,777,216); with 16 or fewer every pattern is analysed.
-    #[arg(long, value_name = "N", default_value_t = 65_536)]
+    #[arg(long, value_name = "N", default_value_t = 65_536,
+          value_parser = clap::value_parser!(u64).range(1..=16_777_216))]
     pub patterns: u64,
     /// Seed of the random patterns.
     #[arg(long, value_name = "N", default_value_t = 1)]
@@ -81,7 +82,7 @@ pub fn run(args: Args) -> CmdResult {
     let (models, data) = load_library_models(&lib, &args.lib)?;
     let net = args.reading.read(&args.netlist, Some(&lib))?;
     let netlist = map(&net, &lib, &MapOptions::default())
-        .map_err(|e| CliError::Input(format!("{}: cannot map: {e:?}", args.netlist.display())))?;
+        .map_err(|e| CliError::Input(format!("{}: cannot map: {e}", args.netlist.display())))?;
     let model = LevelModel::new(&lib, &models, &data);
     let options = LevelOptions {
         patterns: args.patterns,
@@ -90,9 +91,9 @@ pub fn run(args: Args) -> CmdResult {
     // Random patterns and the worst-pattern search can take minutes on a
     // large netlist; a spinner on a terminal only (progress::spinner).
     let progress = super::progress::spinner(&format!(
-        "levels: {} ({} cells)",
+        "levels: {} ({})",
         args.netlist.display(),
-        netlist.instances.len()
+        counted(netlist.instances.len() as u64, "cell")
     ));
     let report = analyze_levels(&netlist, &lib, &model, &options);
     if let Some(p) = progress {
@@ -133,11 +134,11 @@ pub fn run(args: Args) -> CmdResult {
 pub fn summary_line(report: &LevelReport) -> String {
     match report.nets.first() {
         Some(w) => format!(
-            "levels    worst margin {:.3} mV on net {}, {} logic failures (net-patterns) over {} patterns, static {:.3} nW\n",
+            "levels    worst margin {:.3} mV on net {}, {} (net-patterns) over {}, static {:.3} nW\n",
             w.worst_margin_v * 1e3,
             w.net,
-            report.logic_failures,
-            report.patterns,
+            counted(report.logic_failures, "logic failure"),
+            counted(report.patterns, "pattern"),
             report.average_static_power_nw
         ),
         None => "levels    no net is read\n".to_string(),
@@ -155,9 +156,10 @@ fn text_report(
     let mut t = String::new();
     let _ = writeln!(
         t,
-        "levels          {} on {library}: {cells} cells, {} nets read",
+        "levels          {} on {library}: {}, {} read",
         report.design,
-        report.nets.len()
+        counted(cells as u64, "cell"),
+        counted(report.nets.len() as u64, "net")
     );
     let _ = writeln!(
         t,
@@ -194,14 +196,15 @@ fn text_report(
     if !report.exhaustive {
         let _ = writeln!(
             t,
-            "search          {} evaluations of single-input flips from the weakest nets' worst patterns",
-            report.search_evaluations
+            "search          {} of single-input flips from the weakest nets' worst patterns",
+            counted(report.search_evaluations, "evaluation")
         );
     }
     let _ = writeln!(
         t,
-        "logic failures  {} net-patterns on {} patterns",
-        report.logic_failures, report.failing_patterns
+        "logic failures  {} on {}",
+        counted(report.logic_failures, "net-pattern"),
+        counted(report.failing_patterns, "pattern")
     );
     let _ = writeln!(
         t,

@@ -137,12 +137,13 @@ fn read_library(spec: &str) -> Result<(Library, String), CliError> {
             .map_err(|e| CliError::Internal(format!("built-in library is broken: {e}")))?;
         return Ok((lib, text.to_string()));
     }
-    let text = std::fs::read_to_string(spec).map_err(|e| {
+    let bytes = std::fs::read(spec).map_err(|e| {
         CliError::Input(format!(
             "{spec}: cannot read the library ({e}); built-in libraries are {}",
             Library::builtin_names().join(", ")
         ))
     })?;
+    let text = crate::diag::utf8_text(spec, bytes)?;
     let lib = Library::from_json_str(&text, spec).map_err(|e| CliError::Input(e.to_string()))?;
     Ok((lib, text))
 }

@@ -88,9 +88,9 @@ pub fn text(m: &MarginOutcome, lib: &Library) -> String {
     let stage = m.restorer.as_ref().map_or("none", |r| r.name.as_str());
     let _ = writeln!(
         t,
-        "restoring {} cells ({} stages of {stage}), area +{:.4} {}, delay {:.4} -> {:.4} {}, static {:.3} -> {:.3} nW",
-        m.restoring_cells,
-        m.restored_nets.len(),
+        "restoring {} ({} of {stage}), area +{:.4} {}, delay {:.4} -> {:.4} {}, static {:.3} -> {:.3} nW",
+        super::common::counted(m.restoring_cells as u64, "cell"),
+        super::common::counted(m.restored_nets.len() as u64, "stage"),
         m.restoring_area,
         lib.units.area,
         m.delay_before,
@@ -102,11 +102,11 @@ pub fn text(m: &MarginOutcome, lib: &Library) -> String {
     let mv = |v: Option<f64>| v.map_or("n/a".to_string(), |v| format!("{:.3} mV", v * 1e3));
     let _ = writeln!(
         t,
-        "worst     {} before restoring, {} reached ({} covers, {} rounds of level analysis)",
+        "worst     {} before restoring, {} reached ({}, {} of level analysis)",
         mv(m.worst_before_v),
         mv(m.levels.worst_margin_v()),
-        m.covers,
-        m.rounds
+        super::common::counted(m.covers as u64, "cover"),
+        super::common::counted(m.rounds as u64, "round")
     );
     if !m.holds {
         let _ = writeln!(t, "failing   {}", list(&m.failing_nets));

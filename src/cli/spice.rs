@@ -37,13 +37,22 @@ pub struct Args {
     /// inputs switch at 10 ps with 0.1 ps ramps.
     #[arg(long, value_name = "FROM:TO")]
     pub stimulus: Option<String>,
-    /// End of the transient in picoseconds.
+    /// End of the transient in picoseconds (after the step's end at
+    /// 10.1 ps, at most 1,000,000).
     #[arg(long, value_name = "PS", default_value_t = 200.0)]
     pub stop_ps: f64,
     /// How to read the netlist.
     #[command(flatten)]
     pub reading: NetlistArgs,
 }
+
+/// When the inputs of a `--stimulus` step switch, picoseconds.
+const STEP_PS: f64 = 10.0;
+/// How long the step's ramps take, picoseconds.
+const RAMP_PS: f64 = 0.1;
+/// The latest `--stop-ps` (a microsecond): transients of logic cells settle
+/// in picoseconds, and much longer ones only fill the simulator's output.
+const MAX_STOP_PS: f64 = 1e6;
 
 /// Parses a string of 0/1 characters.
 pub fn parse_bits(text: &str, what: &str) -> Result<Vec<bool>, CliError> {
@@ -73,8 +82,9 @@ pub fn load_library_models(
         )
     } else {
         let path = Path::new(lib_spec);
-        let text = std::fs::read_to_string(path)
+        let bytes = std::fs::read(path)
             .map_err(|e| CliError::Input(format!("{lib_spec}: cannot read: {e}")))?;
+        let text = crate::diag::utf8_text(lib_spec, bytes)?;
         let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
         (text, dir, lib_spec.to_string())
     };
@@ -115,20 +125,27 @@ fn read_mapped(args: &Args, lib: &Library) -> Result<MappedNetlist, CliError> {
             "{shown}: a netlist of library cells is read from structural Verilog (.v, as `map -o x.v` writes); give --map to map this netlist first"
         )));
     }
-    let text = std::fs::read_to_string(&args.netlist)
+    let bytes = std::fs::read(&args.netlist)
         .map_err(|e| CliError::Input(format!("{shown}: cannot read: {e}")))?;
+    let text = crate::diag::utf8_text(&shown, bytes)?;
     crate::netlist::read_mapped_verilog(&text, &shown, lib, args.reading.top.as_deref())
         .map_err(CliError::from)
 }
 
 /// Runs the command.
 pub fn run(args: Args) -> CmdResult {
+    if !(args.stop_ps > STEP_PS + RAMP_PS && args.stop_ps <= MAX_STOP_PS) {
+        return Err(CliError::Input(format!(
+            "--stop-ps {:?}: expected a time after the step ends ({} ps) and at most {MAX_STOP_PS} ps",
+            args.stop_ps,
+            STEP_PS + RAMP_PS
+        )));
+    }
     let lib = load_library(&args.lib)?;
     let netlist = if args.map {
         let net = args.reading.read(&args.netlist, Some(&lib))?;
-        map(&net, &lib, &MapOptions::default()).map_err(|e| {
-            CliError::Input(format!("{}: cannot map: {e:?}", args.netlist.display()))
-        })?
+        map(&net, &lib, &MapOptions::default())
+            .map_err(|e| CliError::Input(format!("{}: cannot map: {e}", args.netlist.display())))?
     } else {
         read_mapped(&args, &lib)?
     };
@@ -143,8 +160,8 @@ pub fn run(args: Args) -> CmdResult {
             Stimulus::Step {
                 from: parse_bits(from, "--stimulus")?,
                 to: parse_bits(to, "--stimulus")?,
-                step_ps: 10.0,
-                ramp_ps: 0.1,
+                step_ps: STEP_PS,
+                ramp_ps: RAMP_PS,
                 stop_ps: args.stop_ps,
             }
         }

@@ -24,7 +24,12 @@ pub struct Args {
     #[arg(long, value_name = "OUT.svg")]
     chart: Option<PathBuf>,
     /// Metric the chart shows.
-    #[arg(long = "chart-metric", value_enum, default_value = "cells")]
+    #[arg(
+        long = "chart-metric",
+        value_name = "METRIC",
+        value_enum,
+        default_value = "cells"
+    )]
     chart_metric: Metric,
     /// Also write the combined, duplicate-free result lines to this file.
     #[arg(short = 'o', long = "output", value_name = "RESULTS.jsonl")]
@@ -75,6 +80,16 @@ pub fn run(args: Args) -> CmdResult {
         crate::fsutil::check_writable(path).map_err(CliError::Input)?;
     }
     let merged = read_results(&args.results)?;
+    if merged.records.is_empty() {
+        return Err(CliError::Input(format!(
+            "{}: no result lines to tabulate (expected lines written by `ribbonmap study`)",
+            args.results
+                .iter()
+                .map(|p| p.display().to_string())
+                .collect::<Vec<_>>()
+                .join(", ")
+        )));
+    }
     for file in &merged.truncated {
         eprintln!("note: {file}: ignored an unfinished last line (an interrupted study run)");
     }

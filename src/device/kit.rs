@@ -121,8 +121,9 @@ pub struct TableRef {
 /// Reads the kit at `path`.
 pub fn read_kit(path: &Path) -> Result<DeviceKit, SourceError> {
     let shown = path.display().to_string();
-    let text = std::fs::read_to_string(path)
+    let bytes = std::fs::read(path)
         .map_err(|e| SourceError::new(&shown, 0, 0, format!("cannot read the device kit: {e}")))?;
+    let text = crate::diag::utf8_text(&shown, bytes)?;
     let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
     parse_kit(&text, &shown, &dir)
 }

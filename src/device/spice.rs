@@ -246,10 +246,11 @@ pub fn write_deck(
     let mut text = String::new();
     let _ = writeln!(
         text,
-        "* ribbonmap SPICE deck: '{}' on library '{}' ({} cells); ribbon conductances from lookup tables beside this deck",
+        "* ribbonmap SPICE deck: '{}' on library '{}' ({} cell{}); ribbon conductances from lookup tables beside this deck",
         netlist.name,
         library.name,
-        netlist.instances.len()
+        netlist.instances.len(),
+        if netlist.instances.len() == 1 { "" } else { "s" }
     );
     let _ = writeln!(text, ".options reltol=1e-6 abstol=1e-16 vntol=1e-9");
     let _ = writeln!(text, "vsupply vdd 0 DC {vdd}");

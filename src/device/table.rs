@@ -99,8 +99,9 @@ impl ConductanceTable {
 /// Reads a conductance table: JSON (`ribbonmap-conductance/1`) when the file
 /// name ends in `.json`, CSV otherwise. `shown` is the name used in messages.
 pub fn read_table(path: &Path, shown: &str) -> Result<ConductanceTable, SourceError> {
-    let text = std::fs::read_to_string(path)
+    let bytes = std::fs::read(path)
         .map_err(|e| SourceError::new(shown, 0, 0, format!("cannot read the table: {e}")))?;
+    let text = crate::diag::utf8_text(shown, bytes)?;
     if path.extension().and_then(|e| e.to_str()) == Some("json") {
         super::table_json::parse_json_table(&text, shown)
     } else {

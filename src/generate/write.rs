@@ -54,9 +54,11 @@ pub enum WriteError {
     /// Generation failed.
     #[error(transparent)]
     Generate(#[from] GenerateError),
-    /// Only BLIF and Verilog are written.
+    /// Only BLIF and Verilog are written here (AIGER by
+    /// [`crate::io::write_aiger`]).
     #[error(
-        "generated circuits are written as BLIF (.blif) or structural Verilog (.v), not {0:?}"
+        "this writer writes generated circuits as BLIF (.blif) or structural Verilog (.v), not .{}",
+        .0.extension()
     )]
     Format(NetlistFormat),
 }

@@ -184,6 +184,9 @@ pub struct PlanBenchmark {
     pub spec: String,
     /// Where to get the netlist.
     pub source: BenchmarkSource,
+    /// Line and column (1-based) of the entry in the plan file, for
+    /// messages about the benchmark (0, 0 when not found).
+    pub position: (u32, u32),
 }
 
 /// A library of a plan.
@@ -347,6 +350,14 @@ impl Plan {
     /// are resolved against `path`'s folder).
     pub fn parse(text: &str, path: &Path) -> Result<Plan, SourceError> {
         let file = path.display().to_string();
+        if text.trim().is_empty() {
+            return Err(SourceError::new(
+                &file,
+                1,
+                1,
+                "the plan file is empty: expected a JSON object with \"benchmarks\" and \"libraries\" (docs/study.md)",
+            ));
+        }
         let raw: PlanFile = serde_json::from_str(text).map_err(|e| json_error(&file, &e))?;
         let here = |needle: &str, message: String| {
             let (line, column) = locate(text, needle);
@@ -429,10 +440,14 @@ impl Plan {
                     if found.is_empty() {
                         return Err(here(
                             &quoted,
-                            format!(
-                                "'{pattern}' matches no file (relative to {})",
-                                base.display()
-                            ),
+                            if Path::new(pattern).is_absolute() {
+                                format!("'{pattern}' matches no file")
+                            } else {
+                                format!(
+                                    "'{pattern}' matches no file (relative to {})",
+                                    base.display()
+                                )
+                            },
                         ));
                     }
                     found.sort();
@@ -457,6 +472,7 @@ impl Plan {
                             name,
                             spec,
                             source: BenchmarkSource::File(p),
+                            position: locate(text, &quoted),
                         });
                     }
                 }
@@ -465,8 +481,10 @@ impl Plan {
                     for (k, v) in params {
                         spec.push_str(&format!(",{k}={v}"));
                     }
+                    let quoted = serde_json::to_string(family).unwrap_or_default();
                     push(PlanBenchmark {
                         name: generator_label(family, params),
+                        position: locate(text, &quoted),
                         spec,
                         source: BenchmarkSource::Generate {
                             family: family.clone(),

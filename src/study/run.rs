@@ -133,8 +133,10 @@ pub fn run_study(
     let mut benchmarks: HashMap<usize, Network> = HashMap::new();
     for (index, b) in plan.benchmarks.iter().enumerate() {
         if let BenchmarkSource::Generate { family, params } = &b.source {
-            let network = generate_benchmark(family, params)
-                .map_err(|err| StudyError::Input(format!("{}: {err}", plan.path.display())))?;
+            let network = generate_benchmark(family, params).map_err(|err| {
+                let (line, column) = b.position;
+                StudyError::Input(format!("{}:{line}:{column}: {err}", plan.path.display()))
+            })?;
             benchmarks.insert(index, network);
         }
     }
