@@ -1,7 +1,8 @@
 //! A mutation fuzzer for every reader of user input, on stable Rust.
 //!
 //! Each reader (Verilog, BLIF, BENCH, AIGER, library JSON, study plans,
-//! result lines, conductance tables in CSV and JSON) gets a corpus of seed
+//! result lines, conductance tables in CSV and JSON, device kits, port
+//! maps of `equiv --ports`) gets a corpus of seed
 //! files from the repository and a few written
 //! here; every fuzz input is a seed changed by one to four random mutations
 //! (byte flips, insertions, deletions, duplicated or repeated ranges,
@@ -23,14 +24,18 @@
 //!
 //! ```text
 //! cargo run --release --example fuzz_inputs -- [--inputs N] [--seed S] [--reader NAME]
-//!       [--seconds LIMIT] [--megabytes LIMIT] [--findings DIR]
+//!       [--seconds LIMIT] [--megabytes LIMIT] [--findings DIR] [--mutations M]
 //! ```
 //!
 //! Defaults: 100,000 inputs per reader, seed 1, all readers, 5 s and
-//! 500 MB. The same seed gives the same inputs. Runs on one core.
+//! 500 MB, 1 to 4 mutations per input (`--mutations 1` keeps more inputs
+//! valid, so more of them reach elaboration and the write-back check). The
+//! same seed gives the same inputs. Runs on one core.
 
+use ribbonmap::device::kit::parse_kit;
 use ribbonmap::device::table_csv::parse_csv_table;
 use ribbonmap::device::table_json::parse_json_table;
+use ribbonmap::equiv::parse_port_map;
 use ribbonmap::io::{
     read_netlist, read_netlist_bytes, read_netlist_str, write_aiger, write_blif, NetlistFormat,
     ReadOptions,
@@ -129,9 +134,11 @@ enum Reader {
     Results,
     TableCsv,
     TableJson,
+    Kit,
+    PortMap,
 }
 
-const READERS: [Reader; 9] = [
+const READERS: [Reader; 11] = [
     Reader::Verilog,
     Reader::Blif,
     Reader::Bench,
@@ -141,6 +148,8 @@ const READERS: [Reader; 9] = [
     Reader::Results,
     Reader::TableCsv,
     Reader::TableJson,
+    Reader::Kit,
+    Reader::PortMap,
 ];
 
 impl Reader {
@@ -155,6 +164,8 @@ impl Reader {
             Reader::Results => "results",
             Reader::TableCsv => "table-csv",
             Reader::TableJson => "table-json",
+            Reader::Kit => "kit",
+            Reader::PortMap => "port-map",
         }
     }
 
@@ -182,6 +193,31 @@ impl Reader {
             "[[[[",
         ];
         match self {
+            Reader::Kit => &[
+                "{",
+                "}",
+                "[",
+                "]",
+                ":",
+                ",",
+                "\"",
+                "null",
+                "1e308",
+                "-1",
+                "0",
+                "\"ribbonmap-devices/1\"",
+                "\"cells\":",
+                "\"table\":",
+                "\"tables/",
+                "\"../",
+                "\"/etc/",
+                "\"supply_v\":",
+                "\"function\":",
+                "\"inputs\":",
+                "maj(",
+                "\\u0000",
+            ],
+            Reader::PortMap => &[" ", "\n", "#", "\t", "a", "b[0]", "\\x ", "=", "\u{80}"],
             Reader::Verilog => &[
                 "module ",
                 "endmodule",
@@ -460,6 +496,15 @@ fn seeds(reader: Reader, root: &Path) -> Vec<Vec<u8>> {
             add_dir("libraries/devices/demo/tables", "json", 65536);
             add_dir("tests/data/bad", "json", 8192);
         }
+        Reader::Kit => {
+            add_dir("libraries/devices/demo", "json", 65536);
+        }
+        Reader::PortMap => {
+            written.extend([
+                "# invented port map\na x\nb y  # trailing comment\n\\c[0] c0\n",
+                "G1 N1\nG2 N2\nG3gat G3\n",
+            ]);
+        }
         Reader::Results => {
             written.extend([
                 "{\"benchmark\":\"adder6\",\"design\":\"adder6\",\"library\":\"ribbon3\",\"goal\":\"area\",\
@@ -652,6 +697,13 @@ fn run_reader(reader: Reader, bytes: &[u8], plan_dir: &Path, library: &Library) 
                 false
             }
         }
+        Reader::Kit => {
+            // Table paths resolve against the demo kit's folder, as for
+            // the kit file itself.
+            let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("libraries/devices/demo");
+            parse_kit(&text, "fuzz.json", &dir).is_ok()
+        }
+        Reader::PortMap => parse_port_map(&text, "fuzz.map").is_ok(),
         Reader::Results => {
             // Accepted when every line is a valid result line.
             let mut all = true;
@@ -675,6 +727,7 @@ struct Settings {
     seconds: f64,
     megabytes: f64,
     findings: PathBuf,
+    mutations: usize,
 }
 
 fn settings() -> Settings {
@@ -685,6 +738,7 @@ fn settings() -> Settings {
         seconds: 5.0,
         megabytes: 500.0,
         findings: PathBuf::from("fuzz-findings"),
+        mutations: 4,
     };
     let args: Vec<String> = std::env::args().skip(1).collect();
     let mut i = 0;
@@ -703,6 +757,7 @@ fn settings() -> Settings {
             "--seconds" => s.seconds = number(),
             "--megabytes" => s.megabytes = number(),
             "--findings" => s.findings = PathBuf::from(&value),
+            "--mutations" => s.mutations = (number() as usize).max(1),
             other => {
                 eprintln!("error: unknown option '{other}' (see the comment at the top of examples/fuzz_inputs.rs)");
                 std::process::exit(2)
@@ -797,7 +852,7 @@ fn main() {
                 (Some(p), 0) if p.len() < 1 << 20 => p.clone(),
                 _ => corpus[rng.below(corpus.len())].clone(),
             };
-            for _ in 0..1 + rng.below(4) {
+            for _ in 0..1 + rng.below(settings.mutations) {
                 mutate(&mut input, &mut rng, reader.dictionary(), &corpus);
             }
             {
