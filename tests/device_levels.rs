@@ -446,7 +446,7 @@ fn levels_command_reports_units_and_exit_codes() {
         ])
         .assert()
         .code(2)
-        .stderr(predicates::str::contains("random patterns"));
+        .stderr(predicates::str::contains("1..=16777216"));
     // A library without electrical data is bad input.
     ribbonmap_cli(d)
         .args(["levels", "fa.blif", "--lib", "cmos-le"])
