@@ -114,7 +114,18 @@ pub fn run(args: Args) -> CmdResult {
         max_steps: args.max_steps,
     };
     let start = Instant::now();
-    let result = match synthesize(&functions, args.inputs, &gates, &opts) {
+    // A five-input search can run for minutes: a spinner on a terminal.
+    let progress = super::progress::spinner(&format!(
+        "exact: {} over {} on {}",
+        args.truth,
+        super::common::counted(args.inputs as u64, "input"),
+        library.name
+    ));
+    let searched = synthesize(&functions, args.inputs, &gates, &opts);
+    if let Some(p) = progress {
+        p.finish_and_clear();
+    }
+    let result = match searched {
         Ok(r) => r,
         Err(ExactError::NotFound(n)) => {
             eprintln!(

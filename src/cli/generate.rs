@@ -122,6 +122,9 @@ pub fn run(args: Args) -> CmdResult {
             }
         },
     };
+    // The largest circuits (a mux of 20 select bits, a 512-bit multiplier)
+    // take seconds: a spinner on a terminal.
+    let progress = super::progress::spinner(&format!("generate: {family} width {width}"));
     let text = if format.is_aiger() {
         // AIGER keeps the description in its comment section.
         let err = |e: crate::generate::GenerateError| CliError::Input(e.to_string());
@@ -137,6 +140,9 @@ pub fn run(args: Args) -> CmdResult {
             .map_err(|e| CliError::Input(e.to_string()))?
             .into_bytes()
     };
+    if let Some(p) = progress {
+        p.finish_and_clear();
+    }
     match &args.output {
         Some(path) => crate::fsutil::write_atomic(path, &text)
             .map_err(|e| CliError::Input(format!("{}: cannot write: {e}", path.display())))?,
