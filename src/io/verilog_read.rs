@@ -5,7 +5,9 @@
 //! name prefix per instance (`<instance>/`); instances of library cells
 //! become logic through the cell's truth table; instances of storage cells
 //! (named with `--storage` or declared by the library) and clocked `always`
-//! blocks become storage elements.
+//! blocks become storage elements. A module that instantiates its own name
+//! where a library cell has that name uses the cell (a module cannot
+//! contain itself).
 //!
 //! `initial` assignments of constants give the registers they name their
 //! start values. Sizes are bounded ([`super::limits`]): every expression's
