@@ -297,14 +297,15 @@ fn deeply_nested_function_is_refused_without_overflowing_the_stack() {
     std::fs::write(&file, library_with_inverter_function(&deep)).unwrap();
     // The inverter's function is on line 8 of the copied file, and the
     // message quotes only the start of the expression.
+    // A reader limit refuses the file as bad input (exit 2, one line with
+    // file:line:col, docs/exit-codes.md), in `library check` as in `map`.
     let out = ribbonmap(&["library", "check"], &file);
-    assert_eq!(
-        out.status.code(),
-        Some(1),
-        "a library with errors (contract)"
+    assert_located_bad_input(&out, &file, "8:");
+    assert!(
+        String::from_utf8_lossy(&out.stderr).contains("nested more than 200 deep"),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
     );
-    let stdout = String::from_utf8_lossy(&out.stdout);
-    assert!(stdout.contains("nested more than 200 deep"), "{stdout}");
     let out = Command::cargo_bin("ribbonmap")
         .unwrap()
         .args(["map", "benchmarks/adder16_ripple.blif", "--lib"])
@@ -320,8 +321,8 @@ fn deeply_nested_function_is_refused_without_overflowing_the_stack() {
     )
     .unwrap();
     let out = ribbonmap(&["library", "check"], &file);
-    assert_eq!(out.status.code(), Some(1));
-    assert!(String::from_utf8_lossy(&out.stdout).contains("operators deep"));
+    assert_located_bad_input(&out, &file, "8:");
+    assert!(String::from_utf8_lossy(&out.stderr).contains("operators deep"));
 }
 
 #[test]

@@ -64,6 +64,7 @@ impl Library {
             positions: Positions::default(),
             problems: Vec::new(),
             supply_v: None,
+            limit_problem: None,
         };
         let root: Value = match serde_json::from_str(text) {
             Ok(v) => v,
@@ -88,8 +89,11 @@ impl Library {
             Some(lib) if reader.problems.is_empty() => Ok(lib),
             _ => Err(LibraryError {
                 file: file_name.to_string(),
-                unreadable: false,
-                problems: reader.problems,
+                unreadable: reader.limit_problem.is_some(),
+                problems: match reader.limit_problem {
+                    Some(index) => vec![reader.problems.swap_remove(index)],
+                    None => reader.problems,
+                },
             }),
         }
     }
@@ -156,6 +160,9 @@ struct Reader {
     problems: Vec<LibraryProblem>,
     /// The library's supply (electrical blocks are checked against it).
     supply_v: Option<f64>,
+    /// A value broke a reader limit (an expression nested too deep): the
+    /// file is refused as unreadable input, not listed as a wrong library.
+    limit_problem: Option<usize>,
 }
 
 /// Where a value sits: its path in the document, the cell it belongs to and
@@ -654,6 +661,9 @@ impl Reader {
                                 e.message
                             ),
                         );
+                        if e.limit_exceeded && self.limit_problem.is_none() {
+                            self.limit_problem = Some(self.problems.len() - 1);
+                        }
                         return None;
                     }
                 }

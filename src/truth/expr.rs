@@ -56,6 +56,9 @@ pub struct ExpressionError {
     pub column: usize,
     /// What was found and what was expected.
     pub message: String,
+    /// True when the text broke a size limit of the parser (nesting depth,
+    /// tree height) rather than the grammar: the input is refused as a whole.
+    pub limit_exceeded: bool,
 }
 
 impl fmt::Display for ExpressionError {
@@ -136,6 +139,7 @@ pub fn parse_expression<S: AsRef<str>>(text: &str, inputs: &[S]) -> Result<Expr,
     };
     if parser.tokens.is_empty() {
         return Err(ExpressionError {
+            limit_exceeded: false,
             column: 1,
             message: "empty expression: expected a function of the inputs".into(),
         });
@@ -143,6 +147,7 @@ pub fn parse_expression<S: AsRef<str>>(text: &str, inputs: &[S]) -> Result<Expr,
     let (expr, _) = parser.or()?;
     if let Some(tok) = parser.peek() {
         return Err(ExpressionError {
+            limit_exceeded: false,
             column: tok.column,
             message: format!(
                 "unexpected {} after a complete expression: expected an operator (& ^ |) or the end",
@@ -157,6 +162,7 @@ pub fn parse_expression<S: AsRef<str>>(text: &str, inputs: &[S]) -> Result<Expr,
 pub fn expression_truth<S: AsRef<str>>(text: &str, inputs: &[S]) -> Result<u64, ExpressionError> {
     if inputs.len() > 6 {
         return Err(ExpressionError {
+            limit_exceeded: false,
             column: 1,
             message: format!("{} inputs: a u64 truth table holds at most 6", inputs.len()),
         });
@@ -251,6 +257,7 @@ fn tokenize(text: &str) -> Result<Vec<Token>, ExpressionError> {
                 "1" => TokenKind::One,
                 _ => {
                     return Err(ExpressionError {
+                        limit_exceeded: false,
                         column,
                         message: format!(
                             "unexpected '{word}': the only numbers are the constants 0 and 1"
@@ -261,6 +268,7 @@ fn tokenize(text: &str) -> Result<Vec<Token>, ExpressionError> {
             tokens.push(Token { kind, column });
         } else {
             return Err(ExpressionError {
+                limit_exceeded: false,
                 column,
                 message: format!(
                     "unexpected character '{c}': expected an input name, 0, 1, maj(...), !, ~, &, ^, |, or parentheses"
@@ -308,10 +316,12 @@ impl Parser<'_> {
     fn error_here(&self, expected: &str) -> ExpressionError {
         match self.peek() {
             Some(tok) => ExpressionError {
+                limit_exceeded: false,
                 column: tok.column,
                 message: format!("found {}: {expected}", tok.kind.describe()),
             },
             None => ExpressionError {
+                limit_exceeded: false,
                 column: self.end_column,
                 message: format!("the expression ends too early: {expected}"),
             },
@@ -355,6 +365,7 @@ impl Parser<'_> {
     fn taller(&self, height: usize, column: usize) -> Result<usize, ExpressionError> {
         if height + 1 > MAX_HEIGHT {
             return Err(ExpressionError {
+                limit_exceeded: true,
                 column,
                 message: format!(
                     "expression more than {MAX_HEIGHT} operators deep: split the chain or write the cell's function as a truth table"
@@ -370,6 +381,7 @@ impl Parser<'_> {
         self.nesting += 1;
         if self.nesting > MAX_NESTING {
             return Err(ExpressionError {
+                limit_exceeded: true,
                 column,
                 message: format!("expression nested more than {MAX_NESTING} deep"),
             });
@@ -428,6 +440,7 @@ impl Parser<'_> {
                 }
                 if is_call {
                     return Err(ExpressionError {
+                        limit_exceeded: false,
                         column: tok.column,
                         message: format!(
                             "unknown function '{name}': the only function is maj(x, y, z)"
@@ -437,6 +450,7 @@ impl Parser<'_> {
                 match self.inputs.iter().position(|n| *n == name) {
                     Some(k) => Ok((Expr::Input(k), 1)),
                     None => Err(ExpressionError {
+                        limit_exceeded: false,
                         column: tok.column,
                         message: format!(
                             "unknown name '{name}': the inputs are {}",
