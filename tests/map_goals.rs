@@ -239,7 +239,7 @@ fn bar_on_ribbon3_delay_goal_is_faster_and_balanced_stays_small() {
 }
 
 #[test]
-#[ignore = "known gap: on the ribbon3 cells derived from the demo kit, balanced takes 245,820 nm2 against the area goal's 184,900 (1.33 x, over the 1.25 x bound); the mapper's area recovery misses on these delays"]
+#[ignore = "known gap: on the ribbon3 cells derived from the demo kit, balanced takes 248,434 nm2 against the area goal's 179,612 (1.38 x, over the 1.25 x bound); area recovery within the delay bounds misses on these delays (the least-area run itself no longer depends on delays, tests/map_delay_blind.rs)"]
 fn bar_on_derived_ribbon3_delay_goal_is_faster_and_balanced_stays_small() {
     let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("libraries/demo-kit-ribbon3.json");
     check_bar_goals(&Library::load(&path).expect("loads"));

@@ -188,6 +188,16 @@ impl Implementation {
             .unwrap_or(0.0)
     }
 
+    /// The leaf phases the implementation reads, one bit per
+    /// `2 * leaf position + complemented`: two implementations of a function
+    /// with the same area and the same leaf phases cost the same in any
+    /// cover, and with other leaf phases they may not.
+    pub fn leaf_phases(&self) -> u16 {
+        self.leaf_uses.iter().fold(0, |m, u| {
+            m | 1 << (2 * u.var as u16 + u.complemented as u16)
+        })
+    }
+
     /// Worst leaf-to-output delay when the output drives `load`.
     pub fn delay(&self, load: f32) -> f32 {
         self.leaf_uses.iter().map(|u| u.delay).fold(0.0, f32::max) + self.root_per_load * load
@@ -231,14 +241,18 @@ impl KeepCosts {
         }
     }
 
-    /// Less area, or equal area and less delay.
+    /// Less area, or equal area and less standalone area. Delays play no
+    /// part, so the area-optimal entries of a table (and the supergates
+    /// built from them) are the same for any two libraries with the same
+    /// cell areas.
     pub fn cheaper(&self, other: &KeepCosts) -> bool {
-        less_then(self.area, other.area, self.delay, other.delay)
+        less_then(self.area, other.area, self.standalone, other.standalone)
     }
 
-    /// Less standalone area, or equal and less delay.
+    /// Less standalone area, or equal and less area (no delays, as for
+    /// [`KeepCosts::cheaper`]).
     pub fn cheaper_standalone(&self, other: &KeepCosts) -> bool {
-        less_then(self.standalone, other.standalone, self.delay, other.delay)
+        less_then(self.standalone, other.standalone, self.area, other.area)
     }
 
     /// Less delay, or equal delay and less area.

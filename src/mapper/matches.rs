@@ -7,7 +7,8 @@
 //! implementations of `f` and slot `s ^ 1` those of `!f`, so a cut's one slot
 //! number gives the matches of both output phases. Per function the table
 //! keeps the cheapest implementation by area, the cheapest with its
-//! complemented leaves paid for, and the fastest by delay.
+//! complemented leaves paid for, the fastest by delay, and one cheapest
+//! implementation for every set of leaf phases that reaches the least area.
 
 use super::implementation::{ImplGate, Implementation, KeepCosts, Source, KEEP_CRITERIA};
 use super::small_truth::{depends_on, var};
@@ -17,6 +18,17 @@ use rustc_hash::FxHashMap;
 
 /// Marker for "no slot".
 pub const NO_SLOT: u32 = u32::MAX;
+
+/// Most implementations kept per function (the cover packs a candidate's
+/// position into [`CANDIDATE_BITS`] bits of a choice).
+pub const MAX_CANDIDATES: usize = 1 << CANDIDATE_BITS;
+
+/// Bits of a cover choice that hold the candidate's position in its slot.
+pub const CANDIDATE_BITS: u32 = 5;
+
+/// Area differences smaller than this are ties (areas are sums of a few
+/// cell areas).
+const AREA_TIE: f32 = 1e-6;
 
 /// Implementations per cut function, both phases side by side.
 #[derive(Clone, Debug)]
@@ -148,11 +160,19 @@ impl MatchTable {
     }
 
     /// Adds an implementation (for example an optimum network from exact
-    /// synthesis). Per function the table keeps at most three: the cheapest
-    /// by area, the cheapest by area with an inverter charged for each
-    /// complemented leaf, and the fastest by delay (ties go to the one added
-    /// first). Functions that are constant or whose support is not `0..m`
-    /// are ignored.
+    /// synthesis). Per function the table keeps the cheapest by area, the
+    /// cheapest by area with an inverter charged for each complemented leaf,
+    /// the fastest by delay (ties go to the one listed first), and besides
+    /// them one implementation of the least area for every other set of
+    /// leaf phases it can be had with (why: below), at most
+    /// [`MAX_CANDIDATES`] in all. Functions that are
+    /// constant or whose support is not `0..m` are ignored.
+    ///
+    /// Why the leaf-phase alternatives: which phase of a leaf is free
+    /// depends on the rest of the cover, so `xor3(a, b, !c)` and
+    /// `xnor3(a, b, c)` are not interchangeable even though they cost the
+    /// same. A table keeping only one of them (chosen by delay, or by the
+    /// order of generation) makes the least-area cover depend on the delays.
     pub fn add(&mut self, imp: Implementation) {
         let f = imp.function;
         if f == 0 || f == u64::MAX || !prefix_support(f) {
@@ -162,14 +182,22 @@ impl MatchTable {
         let id = self.implementations.len() as u32;
         let load = self.typical_load;
         let inverter_area = self.inverter_area;
-        let mut contenders: Vec<(u32, KeepCosts)> = self.slots[slot as usize]
+        let mut contenders: Vec<(u32, KeepCosts, u16)> = self.slots[slot as usize]
             .iter()
             .map(|&i| {
                 let kept = &self.implementations[i as usize];
-                (i, KeepCosts::of(kept, inverter_area, load))
+                (
+                    i,
+                    KeepCosts::of(kept, inverter_area, load),
+                    kept.leaf_phases(),
+                )
             })
             .collect();
-        contenders.push((id, KeepCosts::of(&imp, inverter_area, load)));
+        contenders.push((
+            id,
+            KeepCosts::of(&imp, inverter_area, load),
+            imp.leaf_phases(),
+        ));
         // Per criterion, the first contender that no later one beats.
         let winners = KEEP_CRITERIA.map(|better| {
             let mut best = contenders[0];
@@ -180,10 +208,30 @@ impl MatchTable {
             }
             best.0
         });
-        let mut list: Vec<u32> = Vec::with_capacity(3);
+        let mut list: Vec<u32> = Vec::with_capacity(4);
         for w in winners {
             if !list.contains(&w) {
                 list.push(w);
+            }
+        }
+        // One least-area implementation per set of leaf phases, the first
+        // listed, after those kept by the criteria.
+        let least = contenders
+            .iter()
+            .map(|c| c.1.area)
+            .fold(f32::INFINITY, f32::min);
+        let mut phase_sets: Vec<u16> = contenders
+            .iter()
+            .filter(|c| list.contains(&c.0) && c.1.area <= least + AREA_TIE)
+            .map(|c| c.2)
+            .collect();
+        for c in &contenders {
+            if list.len() >= MAX_CANDIDATES {
+                break;
+            }
+            if c.1.area <= least + AREA_TIE && !phase_sets.contains(&c.2) {
+                phase_sets.push(c.2);
+                list.push(c.0);
             }
         }
         if !list.contains(&id) {

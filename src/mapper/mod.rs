@@ -321,6 +321,7 @@ pub fn map_detailed(
     // Run 1: area flow from the start, no delay bound.
     let t = Instant::now();
     let mut area_cover = Cover::new(subject, lib, table, opts.cut_size)?;
+    area_cover.blind_to_delays();
     area_cover.enumerate_and_map(opts.cuts_per_node, Rank::AreaFlow)?;
     let mut cover = Cover::new(subject, lib, table, opts.cut_size)?;
     cover.enumerate_and_map(opts.cuts_per_node, Rank::Delay)?;

@@ -1,7 +1,7 @@
 //! The runs a goal chooses from, and the choice.
 //!
 //! One mapping call covers the subject several ways ("runs"): for least
-//! area (area flow first, no delay bound), and after one delay-oriented pass,
+//! area (area flow first, no delay bound, reading no delays), and after one delay-oriented pass,
 //! area recovery within a range of delay bounds (the least delay, then
 //! a few fractions over it). When a built-in library's cells, with the same
 //! numbers, are all cells of the library being mapped, the runs of that

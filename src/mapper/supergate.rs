@@ -10,7 +10,10 @@
 //! implementation by area, the fastest by delay, and the cheapest by area
 //! with an inverter charged for each complemented leaf (the cover decides
 //! whether a complemented leaf is free; a table that kept only the raw
-//! cheapest would map a NOR3 as an AND3 behind three inverters). The bounds keep the
+//! cheapest would map a NOR3 as an AND3 behind three inverters), and one
+//! implementation of the least area for every set of leaf phases it can be
+//! had with (ties in area go to the one generated first, never to the
+//! faster, so the area-optimal entries do not depend on delays). The bounds keep the
 //! enumeration to a few million table evaluations, done once per library.
 //! Functions are handled as 16-bit tables during generation and handed to
 //! the match table in replicated 64-bit form.
@@ -18,6 +21,7 @@
 use super::implementation::{ImplGate, Implementation, KeepCosts, Source, KEEP_CRITERIA};
 use super::small_truth::{depends_on, replicate};
 use crate::library::Library;
+use rustc_hash::FxHashMap;
 
 const VARS: usize = 4;
 const VAR16: [u16; 4] = [0xAAAA, 0xCCCC, 0xF0F0, 0xFF00];
@@ -36,15 +40,31 @@ struct Generator<'a> {
     /// Per implementation: its function and costs.
     costs: Vec<(u16, KeepCosts)>,
     best: Best,
+    /// Per function: the least-area implementations offered first with
+    /// each set of leaf phases (see [`MatchTable::add`](super::MatchTable::add)).
+    ties: FxHashMap<u16, Vec<(u16, u32)>>,
     inverter_area: f64,
 }
 
 const NONE: u32 = u32::MAX;
 
+/// Area differences smaller than this are ties.
+const AREA_TIE: f32 = 1e-6;
+
 impl<'a> Generator<'a> {
     /// Whether an implementation of `f` with these costs would become one of
-    /// the kept ones.
+    /// the kept ones (for the leaf-phase alternatives: whether its area ties
+    /// the least so far).
     fn better(&self, f: u16, costs: &KeepCosts) -> bool {
+        self.beats_a_criterion(f, costs) || {
+            let id = self.best[CHEAPEST][f as usize];
+            costs.area <= self.costs[id as usize].1.area + AREA_TIE
+        }
+    }
+
+    /// Whether an implementation of `f` with these costs beats a kept one
+    /// under some keep criterion.
+    fn beats_a_criterion(&self, f: u16, costs: &KeepCosts) -> bool {
         KEEP_CRITERIA.iter().zip(&self.best).any(|(better, best)| {
             let id = best[f as usize];
             id == NONE || better(costs, &self.costs[id as usize].1)
@@ -57,7 +77,20 @@ impl<'a> Generator<'a> {
         };
         let f = (imp.function & 0xFFFF) as u16;
         let costs = KeepCosts::of(&imp, self.inverter_area, self.load);
-        if !self.better(f, &costs) {
+        let phases = imp.leaf_phases();
+        let cheapest = self.best[CHEAPEST][f as usize];
+        let least = if cheapest == NONE {
+            f32::INFINITY
+        } else {
+            self.costs[cheapest as usize].1.area
+        };
+        let tie = costs.area <= least + AREA_TIE;
+        let new_phases = tie
+            && self
+                .ties
+                .get(&f)
+                .is_none_or(|t| t.iter().all(|&(p, _)| p != phases));
+        if !new_phases && !self.beats_a_criterion(f, &costs) {
             return;
         }
         let id = self.impls.len() as u32;
@@ -68,6 +101,11 @@ impl<'a> Generator<'a> {
             if kept == NONE || better(&costs, &self.costs[kept as usize].1) {
                 best[f as usize] = id;
             }
+        }
+        if costs.area < least - AREA_TIE {
+            self.ties.insert(f, vec![(phases, id)]);
+        } else if new_phases {
+            self.ties.entry(f).or_default().push((phases, id));
         }
     }
 }
@@ -169,6 +207,7 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
             vec![NONE; 1 << 16],
             vec![NONE; 1 << 16],
         ],
+        ties: FxHashMap::default(),
         inverter_area: Implementation::inverter_area(lib),
     };
     let atoms = atoms();
@@ -307,6 +346,9 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
             if id != NONE && !keep.contains(&id) {
                 keep.push(id);
             }
+        }
+        if let Some(ties) = g.ties.get(&(f as u16)) {
+            keep.extend(ties.iter().map(|&(_, id)| id));
         }
     }
     keep.sort_unstable();

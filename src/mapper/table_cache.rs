@@ -14,8 +14,8 @@
 //! by [`Implementation::new`] with the stored function compared, so a
 //! stale, truncated or edited file is ignored and the table rebuilt.
 //!
-//! Format `ribbonmap-match-table/1` (little-endian): the 8-byte tag
-//! `RMMATCH1`, the library hash (u64), the typical load (f32 bits), the
+//! Format `ribbonmap-match-table/2` (little-endian): the 8-byte tag
+//! `RMMATCH2` (version 2: more implementations per function), the library hash (u64), the typical load (f32 bits), the
 //! inverter and buffer ids (u32, `u32::MAX` for none), the inverter area
 //! (f64 bits), the index (count, then key u64 and slot u32 pairs), the
 //! slots (count, then per slot a count and implementation ids u32), the
@@ -30,7 +30,7 @@ use crate::library::Library;
 use std::path::PathBuf;
 use std::sync::atomic::{AtomicBool, Ordering};
 
-const TAG: &[u8; 8] = b"RMMATCH1";
+const TAG: &[u8; 8] = b"RMMATCH2";
 /// Most entries of any list a cache file may declare (bounds allocation).
 const MAX_ENTRIES: usize = 1 << 24;
 

@@ -2,7 +2,11 @@
 //! order and each node is chosen for least arrival (or, for the area goal,
 //! least area flow) as soon as its cuts are known.
 
-use super::{Cover, Rank};
+use super::{Cover, Rank, CANDIDATE_BITS};
+
+/// Most cuts a cover holds: a choice packs the cut index above
+/// [`CANDIDATE_BITS`] bits, below the markers `NONE`, `INVERT` and `FREE`.
+const MAX_CUTS: usize = (1 << (32 - CANDIDATE_BITS)) - 4;
 use crate::mapper::cuts::Scratch;
 use crate::mapper::MapError;
 
@@ -53,6 +57,11 @@ impl Cover<'_> {
                 },
                 &mut scratch,
             );
+            if self.cuts.len() >= MAX_CUTS {
+                return Err(MapError::Unmappable(format!(
+                    "more than {MAX_CUTS} cuts: the network is too large to map"
+                )));
+            }
             if net.is_gate(id) {
                 self.select(node, rank)?;
             } else {

@@ -2,7 +2,7 @@
 //! used node phase takes the match that adds the least area once its own
 //! cone is released, within its required time.
 
-use super::{Cover, Rank, EPS, INVERT, NONE};
+use super::{Cover, Rank, CANDIDATE_BITS, EPS, INVERT, NONE};
 use crate::mapper::matches::NO_SLOT;
 
 /// Most node phases one trial of the exact-area pass walks.
@@ -91,7 +91,7 @@ impl Cover<'_> {
                     }
                     let leaf_costs = self.leaf_costs(cut);
                     for (ci, &id) in table.candidates(slot ^ phase as u32).iter().enumerate() {
-                        let opt = ((cut as u32) << 2) | ci as u32;
+                        let opt = ((cut as u32) << CANDIDATE_BITS) | ci as u32;
                         let d = self.digest(id);
                         let (arrival, flow) = self.evaluate_with(node, &leaf_costs, d);
                         feasible_count += (arrival <= req + EPS) as usize;

@@ -3,7 +3,7 @@
 //! elements' names.
 
 use super::dedup::CellKeys;
-use super::{Cover, FREE, INVERT, NONE};
+use super::{Cover, CANDIDATE_BITS, FREE, INVERT, NONE};
 use crate::mapper::implementation::Source;
 use crate::mapper::witness::{Claim, NetClaims};
 use crate::netlist::{Driver, MappedNetlist, NetId, Port, StorageInstance};
@@ -187,7 +187,7 @@ impl Cover<'_> {
                         cell_claims.push((net_of[i], Claim::cell(i as u32, &[node as u32])));
                     }
                     c => {
-                        let leaves = self.cuts.leaves((c >> 2) as usize);
+                        let leaves = self.cuts.leaves((c >> CANDIDATE_BITS) as usize);
                         let mut leaf_nets = [NONE; 12];
                         let imp = self.implementation_of(c, phase);
                         for u in &self.table.implementation(imp).leaf_uses {

@@ -51,7 +51,7 @@ mod select;
 mod timing;
 
 use super::cuts::CutStore;
-use super::matches::MatchTable;
+use super::matches::{MatchTable, CANDIDATE_BITS};
 use super::MapError;
 use crate::library::Library;
 use crate::network::Network;
@@ -96,6 +96,8 @@ pub struct Cover<'a> {
     digests: Vec<Digest>,
     /// Leaf uses of the digests, in the implementations' order.
     digest_uses: Vec<DigestUse>,
+    /// Every delay read as one level (see [`Cover::blind_to_delays`]).
+    delay_blind: bool,
 }
 
 /// The part of an [`super::implementation::Implementation`] the passes
@@ -120,7 +122,7 @@ struct DigestUse {
 /// The choice of one node phase and how often the current cover reads it.
 #[derive(Clone, Copy, Debug)]
 struct PhaseState {
-    /// `cut << 2 | candidate`, or `NONE`, `INVERT`, `FREE`.
+    /// `cut << CANDIDATE_BITS | candidate`, or `NONE`, `INVERT`, `FREE`.
     choice: u32,
     /// References by the current cover (outputs and chosen matches).
     refs: u32,
@@ -193,6 +195,7 @@ impl<'a> Cover<'a> {
             digest_of: vec![NONE; table.implementations.len()],
             digests: Vec::new(),
             digest_uses: Vec::new(),
+            delay_blind: false,
         })
     }
 
@@ -207,7 +210,21 @@ impl<'a> Cover<'a> {
                 * 4
     }
 
+    /// Makes the cover read no library delays, before the first pass: every
+    /// match and inverter counts as one level and loads count nothing. For
+    /// the least-area cover, which has no delay bound, so that ties in area
+    /// flow and area go to the shallower choice, then by position (cut rank,
+    /// then the table's order), and two libraries with the same cell areas
+    /// give the same cover whatever their delays.
+    pub fn blind_to_delays(&mut self) {
+        debug_assert!(self.digests.is_empty(), "before the first pass");
+        self.delay_blind = true;
+    }
+
     fn inverter_delay(&self, node: usize) -> f32 {
+        if self.delay_blind {
+            return 1.0;
+        }
         self.table
             .implementation(self.inverter)
             .delay(self.load[node])
@@ -216,9 +233,9 @@ impl<'a> Cover<'a> {
     /// Implementation id of a match choice for phase `phase`.
     #[inline]
     fn implementation_of(&self, choice: u32, phase: usize) -> u32 {
-        let cut = (choice >> 2) as usize;
+        let cut = (choice >> CANDIDATE_BITS) as usize;
         let slot = self.cuts.slot(cut) ^ phase as u32;
-        self.table.candidates(slot)[(choice & 3) as usize]
+        self.table.candidates(slot)[(choice & ((1 << CANDIDATE_BITS) - 1)) as usize]
     }
 
     /// The digest of table implementation `id`, made on first use.
@@ -230,16 +247,17 @@ impl<'a> Cover<'a> {
         }
         let m = self.table.implementation(id);
         let d = self.digests.len() as u32;
+        let blind = self.delay_blind;
         self.digests.push(Digest {
             area: m.area as f32,
-            root_per_load: m.root_per_load,
+            root_per_load: if blind { 0.0 } else { m.root_per_load },
             first_use: self.digest_uses.len() as u32,
             uses: m.leaf_uses.len() as u32,
         });
         self.digest_uses
             .extend(m.leaf_uses.iter().map(|u| DigestUse {
                 code: 2 * u.var as u32 + u.complemented as u32,
-                delay: u.delay,
+                delay: if blind { 1.0 } else { u.delay },
             }));
         self.digest_of[id as usize] = d;
         d

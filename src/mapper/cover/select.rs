@@ -2,7 +2,7 @@
 //! area flow), within the phases' required times: the step shared by the
 //! delay pass and the area-flow pass.
 
-use super::{Cover, PhaseCost, Rank, EPS, FREE, INVERT, NONE};
+use super::{Cover, PhaseCost, Rank, CANDIDATE_BITS, EPS, FREE, INVERT, NONE};
 use crate::mapper::matches::NO_SLOT;
 use crate::mapper::MapError;
 use crate::network::NodeId;
@@ -122,7 +122,7 @@ impl Cover<'_> {
                     self.cost[o].flow + self.inverter_area / self.fanout_estimate[node],
                 )
             }
-            c => self.evaluate(node, (c >> 2) as usize, d),
+            c => self.evaluate(node, (c >> CANDIDATE_BITS) as usize, d),
         }
     }
 
@@ -148,7 +148,7 @@ impl Cover<'_> {
                     let d = self.digest(imp);
                     let (arrival, flow) = self.evaluate_with(node, &leaf_costs, d);
                     let pick = Pick {
-                        choice: ((cut as u32) << 2) | ci as u32,
+                        choice: ((cut as u32) << CANDIDATE_BITS) | ci as u32,
                         digest: d,
                         arrival,
                         flow,

@@ -2,7 +2,7 @@
 //! phases the cover uses, and by when each must arrive for the outputs to
 //! meet their target.
 
-use super::{Cover, FREE, INVERT, NONE};
+use super::{Cover, CANDIDATE_BITS, FREE, INVERT, NONE};
 
 impl Cover<'_> {
     /// Phases of `node` in the order their references must be propagated
@@ -26,7 +26,7 @@ impl Cover<'_> {
             INVERT => f(2 * node + (1 - phase), self.inverter_delay(node)),
             _ => {
                 let m = &self.digests[self.phases[2 * node + phase].digest as usize];
-                let leaves = self.cuts.leaves((c >> 2) as usize);
+                let leaves = self.cuts.leaves((c >> CANDIDATE_BITS) as usize);
                 let tail = m.root_per_load * self.load[node];
                 for u in self.uses_of(m) {
                     f(
@@ -100,7 +100,7 @@ impl Cover<'_> {
                 (self.inverter_area, 1)
             }
             c => {
-                let leaves = self.cuts.leaves((c >> 2) as usize);
+                let leaves = self.cuts.leaves((c >> CANDIDATE_BITS) as usize);
                 let m = &self.digests[state.digest as usize];
                 let mut count = 0;
                 for u in self.uses_of(m) {
