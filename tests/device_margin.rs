@@ -410,3 +410,150 @@ fn ripple_adder_carry_path_delay_matches_ngspice_transient_within_15_percent_ngs
     );
     assert!(error <= 0.15);
 }
+
+/// Runs the binary in `dir` and returns (exit code, stdout).
+fn ribbonmap_in(dir: &Path, args: &[&str]) -> (i32, String) {
+    let out = assert_cmd::Command::cargo_bin("ribbonmap")
+        .unwrap()
+        .args(args)
+        .current_dir(dir)
+        .env("RIBBONMAP_CACHE_DIR", dir)
+        .output()
+        .unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).to_string(),
+    )
+}
+
+/// A study plan's `min_margin` and `compare --min-margin` map exactly as
+/// `map --min-margin` (the outside check of the result is the level
+/// analysis and ngspice of the tests above; here the three commands must
+/// agree figure for figure). On the weak kit an 8-bit ripple adder gets
+/// restoring buffers at 10 mV (xor3w's sums), while at 20 mV xor3w is left
+/// out (no buffer reads its 0.138 V high level with 20 mV to spare) and no
+/// stage is needed.
+#[test]
+fn study_and_compare_min_margin_equal_map_min_margin() {
+    let dir = tempfile::tempdir().unwrap();
+    let kit = Path::new(env!("CARGO_MANIFEST_DIR")).join("libraries/devices/demo/demo-weak.json");
+    let ch = characterize(read_kit(&kit).unwrap()).unwrap();
+    std::fs::write(dir.path().join("weak.json"), library_text(&ch, dir.path())).unwrap();
+    std::fs::write(dir.path().join("add8.blif"), ripple_adder_blif(8)).unwrap();
+    for (mv, restoring) in [(10.0, true), (20.0, false)] {
+        let (code, map_out) = ribbonmap_in(
+            dir.path(),
+            &[
+                "map",
+                "add8.blif",
+                "--lib",
+                "weak.json",
+                "--goal",
+                "balanced",
+                "--min-margin",
+                &mv.to_string(),
+                "--format",
+                "json",
+            ],
+        );
+        assert_eq!(code, 0, "{map_out}");
+        let map: serde_json::Value = serde_json::from_str(&map_out).unwrap();
+        let plan = format!(
+            "{{\"benchmarks\": [\"add8.blif\"], \"libraries\": [\"weak.json\"], \"goals\": [\"balanced\"], \"options\": {{\"min_margin\": {mv}, \"verify\": \"full\"}}}}"
+        );
+        let plan_file = format!("plan{mv}.json");
+        let results = format!("results{mv}.jsonl");
+        std::fs::write(dir.path().join(&plan_file), plan).unwrap();
+        let (code, _) = ribbonmap_in(dir.path(), &["study", &plan_file, "-o", &results]);
+        assert_eq!(code, 0);
+        let line: serde_json::Value = serde_json::from_str(
+            std::fs::read_to_string(dir.path().join(&results))
+                .unwrap()
+                .lines()
+                .next()
+                .unwrap(),
+        )
+        .unwrap();
+        let (code, compare_out) = ribbonmap_in(
+            dir.path(),
+            &[
+                "compare",
+                "add8.blif",
+                "--lib",
+                "weak.json",
+                "--goal",
+                "balanced",
+                "--min-margin",
+                &mv.to_string(),
+                "--format",
+                "json",
+            ],
+        );
+        assert_eq!(code, 0, "{compare_out}");
+        let compare: serde_json::Value = serde_json::from_str(&compare_out).unwrap();
+        let row = &compare["rows"][0];
+        let margin = &map["margin"];
+        println!(
+            "add8 on the weak kit, min margin {mv} mV: {} cells, {} restoring (+{} nm2), delay {} ps, worst {} mV before, {} mV reached, left out {}",
+            map["cell_count"],
+            margin["restoring_cells"],
+            margin["restoring_area"],
+            map["delay"],
+            margin["worst_margin_before_mv"],
+            margin["worst_margin_mv"],
+            margin["left_out"]
+        );
+        assert_eq!(margin["holds"], true);
+        assert_eq!(margin["restoring_cells"].as_u64().unwrap() > 0, restoring);
+        for record in [&line, row] {
+            assert_eq!(record["min_margin_mv"], mv);
+            for field in ["cells", "cell_count", "area", "delay", "depth"] {
+                assert_eq!(record[field], map[field], "{field} at {mv} mV");
+            }
+            for field in [
+                "restoring_cells",
+                "restoring_area",
+                "delay_before",
+                "delay_after",
+                "worst_margin_before_mv",
+                "worst_margin_mv",
+                "left_out",
+                "holds",
+            ] {
+                assert_eq!(record["margin"][field], margin[field], "{field} at {mv} mV");
+            }
+        }
+    }
+}
+
+/// Bad input (exit 2, one line naming the plan's line): `min_margin` on a
+/// library without electrical data, and a negative `min_margin`.
+#[test]
+fn plan_min_margin_bad_input() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("add2.blif"), ripple_adder_blif(2)).unwrap();
+    for (options, words) in [
+        (
+            "\"min_margin\": 20",
+            "min_margin needs a characterised library",
+        ),
+        ("\"min_margin\": -5", "non-negative"),
+    ] {
+        let plan = format!(
+            "{{\"benchmarks\": [\"add2.blif\"],\n \"libraries\": [\"ribbon3\"],\n \"options\": {{{options}}}}}"
+        );
+        std::fs::write(dir.path().join("plan.json"), plan).unwrap();
+        let out = assert_cmd::Command::cargo_bin("ribbonmap")
+            .unwrap()
+            .args(["study", "plan.json", "-o", "r.jsonl"])
+            .current_dir(dir.path())
+            .env("RIBBONMAP_CACHE_DIR", dir.path())
+            .output()
+            .unwrap();
+        let stderr = String::from_utf8_lossy(&out.stderr).to_string();
+        assert_eq!(out.status.code(), Some(2), "{stderr}");
+        assert_eq!(stderr.lines().count(), 1, "{stderr}");
+        assert!(stderr.contains("plan.json:"), "{stderr}");
+        assert!(stderr.contains(words), "{stderr}");
+    }
+}
