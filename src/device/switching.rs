@@ -401,6 +401,14 @@ pub fn fit_delay<'a>(
     edges: &ReferenceEdges,
 ) -> DelayFit {
     let all = arcs(truth, arity);
+    if all.is_empty() {
+        // A constant function has no arc: nothing switches.
+        return DelayFit {
+            intrinsic_ps: 0.0,
+            per_load_ps: 0.0,
+            points: Vec::new(),
+        };
+    }
     let points: Vec<(f64, f64, Arc)> = FIT_LOADS
         .iter()
         .map(|&load| {
