@@ -11,9 +11,9 @@
 //! - Equivalence proof: every margin-aware result, restoring stages
 //!   included, is proven equal to its input netlist (`proof::prove`).
 //! - ngspice transient: the 50 % delay from a carry-in step to the last sum
-//!   of a mapped 4-bit ripple adder against the tool's static timing of
-//!   the paths from the carry in (ignored: the model is 30 % low, see the
-//!   test).
+//!   of a mapped 4-bit ripple adder agrees with the tool's static timing of
+//!   the paths from the carry in within 15 % (the library's delays are
+//!   characterised with slowly switching inputs, docs/device-data.md).
 //! - The level analysis itself is checked against ngspice in
 //!   tests/device_levels.rs; here it is rerun with another random seed on
 //!   the results, independently of the run that placed the stages.
@@ -335,8 +335,14 @@ fn arrival_from(netlist: &MappedNetlist, lib: &Library, from: usize) -> Vec<Opti
     arrival
 }
 
+/// Issue 15's transient check (ngspice as the reference). The carry in is
+/// an ideal step (0.01 ps ramp), so the first carry cell switches faster in
+/// ngspice than the library says: its delays assume an input edge like a
+/// fanout-of-four inverter's (docs/device-data.md, "Delay"). The stages
+/// after it see real neighbours' edges. The path is timed a second time with
+/// the carry in driven as the characterisation assumes (through six padded
+/// reference inverters); both must agree within 15 %.
 #[test]
-#[ignore = "known gap of issue 15: the library's RC delay model (t50 = ln2 C / (Gu + Gd) at a step input) ignores input slew, so static timing gives 17.7 ps where ngspice's transient gives 25.4 ps on this carry chain (30 % low); run with --ignored to measure"]
 fn ripple_adder_carry_path_delay_matches_ngspice_transient_within_15_percent_ngspice() {
     if !ngspice_present() {
         return;
@@ -354,29 +360,124 @@ fn ripple_adder_carry_path_delay_matches_ngspice_transient_within_15_percent_ngs
     let s3 = netlist.outputs.iter().find(|p| p.name == "s3").unwrap().net;
     let model = arrival_from(&netlist, &s.lib, cin as usize)[s3 as usize]
         .expect("the last sum depends on the carry in");
-    let mid = (s.models.logic_low_v + s.models.logic_high_v) / 2.0;
-    let measure = format!(
-        ".measure tran t50 trig v({}) val={mid} cross=1 targ v({}) val={} cross=1",
-        node(cin),
-        node(s3),
-        s.models.supply_v / 2.0
+    let t50 = carry_t50(&s, &netlist, &from, &to, cin, s3, &[], "add4_tran", model);
+    let error = (model - t50).abs() / t50;
+    println!(
+        "4-bit ripple adder ({} cells), carry-in step to s3: ngspice t50 {t50:.3} ps, static timing {model:.3} ps, error {:.1} %",
+        netlist.instances.len(),
+        error * 100.0
     );
+    assert!(error <= 0.15);
+
+    // The same path with the carry in driven as the characterisation
+    // assumes: through six of the kit's inverters, each padded to four unit
+    // loads; timed from the carry-in net itself.
+    let mut driven = netlist.clone();
+    let inv = s.lib.cell_index("inv").unwrap() as u32;
+    let src = driven.add_net("c0_src".into(), Driver::Input(8));
+    driven.inputs[8].net = src;
+    let unit = s.models.unit_load_af;
+    let gate = |cell: u32| {
+        s.models.cells[cell as usize]
+            .as_ref()
+            .unwrap()
+            .gate_capacitance_af
+    };
+    let readers: f64 = netlist
+        .instances
+        .iter()
+        .flat_map(|i| {
+            i.inputs
+                .iter()
+                .filter(|&&n| n == cin)
+                .map(move |_| gate(i.cell))
+        })
+        .sum();
+    let mut padding = Vec::new();
+    let mut previous = src;
+    for stage in 0..6 {
+        let out = if stage == 5 {
+            // The last inverter drives the carry-in net the cells read.
+            let idx = driven.instances.len() as u32;
+            driven.nets[cin as usize].driver = Driver::Cell(idx);
+            driven.instances.push(ribbonmap::netlist::Instance {
+                name: format!("ref{stage}"),
+                cell: inv,
+                inputs: vec![previous],
+                output: cin,
+            });
+            padding.push((cin, 4.0 * unit - readers));
+            cin
+        } else {
+            let out = driven.add_instance(inv, vec![previous], format!("ref{stage}"));
+            padding.push((out, 4.0 * unit - gate(inv)));
+            out
+        };
+        previous = out;
+    }
+    let caps: Vec<String> = padding
+        .iter()
+        .enumerate()
+        .map(|(i, (n, af))| format!("cpad{i} {} 0 {:e}", node(*n), af * 1e-18))
+        .collect();
+    let t50_driven = carry_t50(
+        &s,
+        &driven,
+        &from,
+        &to,
+        cin,
+        s3,
+        &caps,
+        "add4_driven",
+        model,
+    );
+    let error_driven = (model - t50_driven).abs() / t50_driven;
+    println!(
+        "  carry in driven by the reference chain: ngspice t50 {t50_driven:.3} ps, static timing {model:.3} ps, error {:.1} %",
+        error_driven * 100.0
+    );
+    assert!(error_driven <= 0.15);
+}
+
+/// ngspice's 50 % delay in picoseconds from net `from_net` to net `to_net`
+/// of `netlist` when the inputs step from `from` to `to`; `extra` cards go
+/// into the deck.
+#[allow(clippy::too_many_arguments)]
+fn carry_t50(
+    s: &Setup,
+    netlist: &MappedNetlist,
+    from: &[bool],
+    to: &[bool],
+    from_net: u32,
+    to_net: u32,
+    extra: &[String],
+    stem: &str,
+    expected_ps: f64,
+) -> f64 {
+    let mid = (s.models.logic_low_v + s.models.logic_high_v) / 2.0;
+    let mut cards = extra.to_vec();
+    cards.push(format!(
+        ".measure tran t50 trig v({}) val={mid} cross=1 targ v({}) val={} cross=1",
+        node(from_net),
+        node(to_net),
+        s.models.supply_v / 2.0
+    ));
     let deck = write_deck(
-        &netlist,
+        netlist,
         &s.lib,
         &s.models,
         &Stimulus::Step {
-            from,
-            to,
+            from: from.to_vec(),
+            to: to.to_vec(),
             step_ps: 5.0,
             ramp_ps: 0.01,
-            stop_ps: 5.0 + 10.0 * model,
+            stop_ps: 100.0 + 10.0 * expected_ps,
         },
-        "add4_tran",
-        &[measure],
+        stem,
+        &cards,
     )
     .unwrap();
-    let path = s.dir.join("add4_tran.cir");
+    let path = s.dir.join(format!("{stem}.cir"));
     deck.save(&path).unwrap();
     let out = Command::new("ngspice")
         .arg("-b")
@@ -386,7 +487,7 @@ fn ripple_adder_carry_path_delay_matches_ngspice_transient_within_15_percent_ngs
         .expect("ngspice runs");
     let output =
         String::from_utf8_lossy(&out.stdout).to_string() + &String::from_utf8_lossy(&out.stderr);
-    let t50 = output
+    output
         .lines()
         .find_map(|l| {
             let rest = l
@@ -397,12 +498,152 @@ fn ripple_adder_carry_path_delay_matches_ngspice_transient_within_15_percent_ngs
             rest.split_whitespace().next()?.parse::<f64>().ok()
         })
         .unwrap_or_else(|| panic!("no t50 in ngspice output:\n{output}"))
-        * 1e12;
-    let error = (model - t50).abs() / t50;
-    println!(
-        "4-bit ripple adder ({} cells), carry-in step to s3: ngspice t50 {t50:.3} ps, static timing {model:.3} ps, error {:.1} %",
-        netlist.instances.len(),
-        error * 100.0
-    );
-    assert!(error <= 0.15);
+        * 1e12
+}
+
+/// Runs the binary in `dir` and returns (exit code, stdout).
+fn ribbonmap_in(dir: &Path, args: &[&str]) -> (i32, String) {
+    let out = assert_cmd::Command::cargo_bin("ribbonmap")
+        .unwrap()
+        .args(args)
+        .current_dir(dir)
+        .env("RIBBONMAP_CACHE_DIR", dir)
+        .output()
+        .unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).to_string(),
+    )
+}
+
+/// A study plan's `min_margin` and `compare --min-margin` map exactly as
+/// `map --min-margin` (the outside check of the result is the level
+/// analysis and ngspice of the tests above; here the three commands must
+/// agree figure for figure). On the weak kit an 8-bit ripple adder gets
+/// restoring buffers at 10 mV (xor3w's sums), while at 20 mV xor3w is left
+/// out (no buffer reads its 0.138 V high level with 20 mV to spare) and no
+/// stage is needed.
+#[test]
+fn study_and_compare_min_margin_equal_map_min_margin() {
+    let dir = tempfile::tempdir().unwrap();
+    let kit = Path::new(env!("CARGO_MANIFEST_DIR")).join("libraries/devices/demo/demo-weak.json");
+    let ch = characterize(read_kit(&kit).unwrap()).unwrap();
+    std::fs::write(dir.path().join("weak.json"), library_text(&ch, dir.path())).unwrap();
+    std::fs::write(dir.path().join("add8.blif"), ripple_adder_blif(8)).unwrap();
+    for (mv, restoring) in [(10.0, true), (20.0, false)] {
+        let (code, map_out) = ribbonmap_in(
+            dir.path(),
+            &[
+                "map",
+                "add8.blif",
+                "--lib",
+                "weak.json",
+                "--goal",
+                "balanced",
+                "--min-margin",
+                &mv.to_string(),
+                "--format",
+                "json",
+            ],
+        );
+        assert_eq!(code, 0, "{map_out}");
+        let map: serde_json::Value = serde_json::from_str(&map_out).unwrap();
+        let plan = format!(
+            "{{\"benchmarks\": [\"add8.blif\"], \"libraries\": [\"weak.json\"], \"goals\": [\"balanced\"], \"options\": {{\"min_margin\": {mv}, \"verify\": \"full\"}}}}"
+        );
+        let plan_file = format!("plan{mv}.json");
+        let results = format!("results{mv}.jsonl");
+        std::fs::write(dir.path().join(&plan_file), plan).unwrap();
+        let (code, _) = ribbonmap_in(dir.path(), &["study", &plan_file, "-o", &results]);
+        assert_eq!(code, 0);
+        let line: serde_json::Value = serde_json::from_str(
+            std::fs::read_to_string(dir.path().join(&results))
+                .unwrap()
+                .lines()
+                .next()
+                .unwrap(),
+        )
+        .unwrap();
+        let (code, compare_out) = ribbonmap_in(
+            dir.path(),
+            &[
+                "compare",
+                "add8.blif",
+                "--lib",
+                "weak.json",
+                "--goal",
+                "balanced",
+                "--min-margin",
+                &mv.to_string(),
+                "--format",
+                "json",
+            ],
+        );
+        assert_eq!(code, 0, "{compare_out}");
+        let compare: serde_json::Value = serde_json::from_str(&compare_out).unwrap();
+        let row = &compare["rows"][0];
+        let margin = &map["margin"];
+        println!(
+            "add8 on the weak kit, min margin {mv} mV: {} cells, {} restoring (+{} nm2), delay {} ps, worst {} mV before, {} mV reached, left out {}",
+            map["cell_count"],
+            margin["restoring_cells"],
+            margin["restoring_area"],
+            map["delay"],
+            margin["worst_margin_before_mv"],
+            margin["worst_margin_mv"],
+            margin["left_out"]
+        );
+        assert_eq!(margin["holds"], true);
+        assert_eq!(margin["restoring_cells"].as_u64().unwrap() > 0, restoring);
+        for record in [&line, row] {
+            assert_eq!(record["min_margin_mv"], mv);
+            for field in ["cells", "cell_count", "area", "delay", "depth"] {
+                assert_eq!(record[field], map[field], "{field} at {mv} mV");
+            }
+            for field in [
+                "restoring_cells",
+                "restoring_area",
+                "delay_before",
+                "delay_after",
+                "worst_margin_before_mv",
+                "worst_margin_mv",
+                "left_out",
+                "holds",
+            ] {
+                assert_eq!(record["margin"][field], margin[field], "{field} at {mv} mV");
+            }
+        }
+    }
+}
+
+/// Bad input (exit 2, one line naming the plan's line): `min_margin` on a
+/// library without electrical data, and a negative `min_margin`.
+#[test]
+fn plan_min_margin_bad_input() {
+    let dir = tempfile::tempdir().unwrap();
+    std::fs::write(dir.path().join("add2.blif"), ripple_adder_blif(2)).unwrap();
+    for (options, words) in [
+        (
+            "\"min_margin\": 20",
+            "min_margin needs a characterised library",
+        ),
+        ("\"min_margin\": -5", "non-negative"),
+    ] {
+        let plan = format!(
+            "{{\"benchmarks\": [\"add2.blif\"],\n \"libraries\": [\"ribbon3\"],\n \"options\": {{{options}}}}}"
+        );
+        std::fs::write(dir.path().join("plan.json"), plan).unwrap();
+        let out = assert_cmd::Command::cargo_bin("ribbonmap")
+            .unwrap()
+            .args(["study", "plan.json", "-o", "r.jsonl"])
+            .current_dir(dir.path())
+            .env("RIBBONMAP_CACHE_DIR", dir.path())
+            .output()
+            .unwrap();
+        let stderr = String::from_utf8_lossy(&out.stderr).to_string();
+        assert_eq!(out.status.code(), Some(2), "{stderr}");
+        assert_eq!(stderr.lines().count(), 1, "{stderr}");
+        assert!(stderr.contains("plan.json:"), "{stderr}");
+        assert!(stderr.contains(words), "{stderr}");
+    }
 }

@@ -48,10 +48,60 @@ fn divider_ratio_gives_voh_and_vol() {
     assert!((c.rows[0].current_a - 0.2 * 9.9e-6 * 0.1e-6 / 10e-6).abs() < 1e-18);
     // First-order RC: t50 = ln 2 · C / (Gu + Gd) with the slowest row
     // (a = 0: 10 µS; a = 1: 10 µS as well); 40 aF / 10 µS = 4 ps.
-    assert!((c.intrinsic_ps - std::f64::consts::LN_2 * 4.0).abs() < 1e-9);
-    assert!((c.per_load_ps - std::f64::consts::LN_2 * 3.0).abs() < 1e-9);
+    assert!((c.step_intrinsic_ps - std::f64::consts::LN_2 * 4.0).abs() < 1e-9);
+    assert!((c.step_per_load_ps - std::f64::consts::LN_2 * 3.0).abs() < 1e-9);
+    // One cell alone has no reference inverter to drive it: the library's
+    // figures are the step figures.
+    assert_eq!(c.intrinsic_ps, c.step_intrinsic_ps);
+    assert!(c.delay_fit.is_none());
     // ½ C V²: 0.5 · 40 aF · 0.04 V² = 0.8 aJ.
     assert!((c.switch_energy_aj - 0.8).abs() < 1e-12);
+}
+
+/// First-order RC (common practice; Rabaey et al. 2003): after a step at
+/// the input, the output relaxes exponentially with τ = C / (Gu + Gd) of
+/// the final state and, with levels symmetric about Vdd/2, crosses Vdd/2
+/// after t50 = τ·ln 2. The integrator of `device::switching` must give it:
+/// here Gu/Gd = 9/1 µS at a = 0 and 1/9 µS at a = 0.2 V, C = 50 aF, so
+/// τ = 5 ps, the output goes from 0.18 V to 0.02 V, and t50 = 5·ln 2 ps.
+#[test]
+fn switching_integrator_step_gives_first_order_rc_delay() {
+    use ribbonmap::device::switching::{delay_50, Arc, Stage, Waveform};
+    let up = parse_csv_table("a,g[uS]\n0,9\n0.2,1\n", "up.csv").unwrap();
+    let down = parse_csv_table("a,g[uS]\n0,1\n0.2,9\n", "down.csv").unwrap();
+    let stage = Stage {
+        pull_up: &up,
+        pull_down: &down,
+        supply_v: 0.2,
+        logic_low_v: 0.0,
+        logic_high_v: 0.2,
+        capacitance_af: 50.0,
+    };
+    let arc = Arc {
+        input: 0,
+        row: 0,
+        input_rises: true,
+    };
+    let input = Waveform::step(0.0, 0.2, 1.0, 0.001, 40.0);
+    let out = stage.respond(arc, &input);
+    assert!(
+        (out.volts[0] - 0.18).abs() < 1e-12,
+        "static start {}",
+        out.volts[0]
+    );
+    let expected = 5.0 * std::f64::consts::LN_2;
+    let t50 = delay_50(&input, &out, 0.1, 0.1).unwrap();
+    assert!((t50 - expected).abs() < 0.01, "{t50} vs {expected}");
+    // The early-stopping form gives the same crossing.
+    let t = stage.output_crossing(arc, &input, 0.1, 40.0).unwrap();
+    assert!((t - 1.0 - expected).abs() < 0.01, "{t}");
+    // Towards the final divider value 0.2 · 1/10: 39 ps = 7.8 τ after the
+    // step, 0.16 V · exp(−7.8) = 65 µV remain.
+    let left = out.volts[out.volts.len() - 1] - 0.02;
+    assert!(
+        (left - 0.16 * (-39.0f64 / 5.0).exp()).abs() < 1e-6,
+        "{left}"
+    );
 }
 
 /// The conductance quantum 2e²/h from the exact 2019-SI values of e and h

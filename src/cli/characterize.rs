@@ -140,6 +140,7 @@ fn summary_json(ch: &Characterization, output: &Path) -> serde_json::Value {
                 "nml_v": c.nml, "nmh_v": c.nmh, "restoring": c.restoring,
                 "pull_up_on_off": c.pull_up_on_off, "pull_down_on_off": c.pull_down_on_off,
                 "intrinsic_delay_ps": c.intrinsic_ps, "delay_per_load_ps": c.per_load_ps,
+                "step_intrinsic_delay_ps": c.step_intrinsic_ps, "step_delay_per_load_ps": c.step_per_load_ps,
                 "static_power_nw": mean_power_nw(ch, c),
                 "switch_energy_aj": c.switch_energy_aj,
             })

@@ -4,7 +4,7 @@
 use super::common::{load_library, Format};
 use super::netlist_args::NetlistArgs;
 use super::{CliError, CmdResult, EXIT_OK};
-use crate::study::evaluate::{compare_reporting, EvaluateOptions};
+use crate::study::evaluate::{compare_with_levels, EvaluateOptions, LibraryLevels};
 use crate::study::power::Stimulus;
 use crate::study::table::{render, ComparisonTable, Metric, TableFormat};
 use crate::study::units::{LibraryScale, TableUnits};
@@ -41,6 +41,10 @@ pub struct Args {
     #[arg(long, value_name = "N", default_value_t = crate::study::power::DEFAULT_PATTERNS,
           value_parser = clap::value_parser!(u64).range(2..=16_777_216))]
     patterns: u64,
+    /// Map margin-aware, as `map --min-margin MV`: every net keeps MV
+    /// millivolts of noise margin (characterised libraries only).
+    #[arg(long = "min-margin", value_name = "MV")]
+    min_margin: Option<f64>,
     /// Table format.
     #[arg(long, value_enum, default_value = "text")]
     format: Format,
@@ -159,6 +163,19 @@ pub fn run(args: Args) -> CmdResult {
             args.input_probability
         )));
     }
+    let mut levels = Vec::new();
+    if let Some(mv) = args.min_margin {
+        if !mv.is_finite() {
+            return Err(CliError::Input(format!(
+                "--min-margin {mv}: expected a number of millivolts"
+            )));
+        }
+        for (spec, lib) in specs.iter().zip(&libraries) {
+            levels.push(Some(LibraryLevels::load(lib, spec).map_err(|e| {
+                CliError::Input(format!("--min-margin: library '{spec}': {e}"))
+            })?));
+        }
+    }
     let mut benchmarks = Vec::new();
     for path in &args.netlists {
         let network = args.read.read(path, None)?;
@@ -178,6 +195,7 @@ pub fn run(args: Args) -> CmdResult {
             patterns: args.patterns,
             seed: 1,
         },
+        min_margin_mv: args.min_margin,
     };
     let mut pool = rayon::ThreadPoolBuilder::new();
     if let Some(n) = args.jobs {
@@ -192,7 +210,7 @@ pub fn run(args: Args) -> CmdResult {
     );
     let records = pool
         .install(|| {
-            compare_reporting(&benchmarks, &libraries, &options, || {
+            compare_with_levels(&benchmarks, &libraries, &levels, &options, || {
                 if let Some(p) = &progress {
                     p.inc(1);
                 }

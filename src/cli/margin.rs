@@ -116,23 +116,5 @@ pub fn text(m: &MarginOutcome, lib: &Library) -> String {
 
 /// The JSON object `margin` of the map report.
 pub fn json(m: &MarginOutcome, lib: &Library) -> serde_json::Value {
-    serde_json::json!({
-        "min_margin_mv": m.min_margin_v * 1e3,
-        "holds": m.holds,
-        "left_out": m.left_out,
-        "restorer": m.restorer,
-        "restored_nets": m.restored_nets,
-        "restoring_cells": m.restoring_cells,
-        "restoring_area": m.restoring_area,
-        "delay_before": m.delay_before,
-        "delay_after": m.delay_after,
-        "static_before_nw": m.static_before_nw,
-        "static_after_nw": m.static_after_nw,
-        "worst_margin_before_mv": m.worst_before_v.map(|v| v * 1e3),
-        "worst_margin_mv": m.levels.worst_margin_v().map(|v| v * 1e3),
-        "covers": m.covers,
-        "rounds": m.rounds,
-        "failing_nets": m.failing_nets,
-        "units": {"area": lib.units.area, "delay": lib.units.delay},
-    })
+    m.summary_json(lib)
 }

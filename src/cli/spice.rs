@@ -6,8 +6,8 @@
 use super::common::load_library;
 use super::{CliError, CmdResult, EXIT_OK};
 use crate::cli::netlist_args::NetlistArgs;
-use crate::device::spice::{load_models, write_deck, DeckModels, Stimulus};
-use crate::library::electrical::{read_electrical, ElectricalData};
+use crate::device::spice::{write_deck, DeckModels, Stimulus};
+use crate::library::electrical::ElectricalData;
 use crate::library::Library;
 use crate::mapper::{map, MapOptions};
 use crate::netlist::MappedNetlist;
@@ -74,23 +74,7 @@ pub fn load_library_models(
     lib: &Library,
     lib_spec: &str,
 ) -> Result<(DeckModels, ElectricalData), CliError> {
-    let (text, dir, shown) = if let Some(text) = crate::library::builtin_text(lib_spec) {
-        (
-            text.to_string(),
-            PathBuf::from("libraries"),
-            format!("<builtin:{lib_spec}>"),
-        )
-    } else {
-        let path = Path::new(lib_spec);
-        let bytes = std::fs::read(path)
-            .map_err(|e| CliError::Input(format!("{lib_spec}: cannot read: {e}")))?;
-        let text = crate::diag::utf8_text(lib_spec, bytes)?;
-        let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
-        (text, dir, lib_spec.to_string())
-    };
-    let data = read_electrical(&text);
-    let models = load_models(lib, &data, &dir, &shown)?;
-    Ok((models, data))
+    crate::device::spice::load_spec_models(lib, lib_spec).map_err(CliError::Input)
 }
 
 /// Writes the deck of `netlist` on `lib` (loaded from `lib_spec`) to

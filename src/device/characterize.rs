@@ -10,8 +10,20 @@
 //! conductances and `t50 = τ·ln 2`; the energy of one output toggle is
 //! `½·C·Vdd²`. Units: attofarads over microsiemens are picoseconds,
 //! attofarads times volts squared are attojoules.
+//!
+//! The library's delay model is not that step delay: a cell in a circuit is
+//! driven by a neighbour that rises or falls over picoseconds, not by a
+//! step. [`characterize`] therefore times every arc of every cell by
+//! integrating its output node with the input driven by the steady-state
+//! edge of a fanout-of-four chain of the kit's inverter
+//! ([`super::switching`]), at several loads, and fits
+//! `intrinsic + per_load · load` to the slowest arc (least squares). The
+//! step figures stay available as `step_intrinsic_ps` / `step_per_load_ps`.
 
 use super::kit::{DeviceKit, KitCell, TableRef};
+use super::switching::{
+    fit_delay, reference_edges, DelayFit, ReferenceEdges, Stage, REFERENCE_FANOUT,
+};
 use super::table::{read_table, ConductanceTable};
 use super::transfer::{divider, sweep, TransferCurve};
 use crate::diag::SourceError;
@@ -59,10 +71,20 @@ pub struct CellCharacter {
     pub curves: Vec<TransferCurve>,
     /// Smallest Gu + Gd over the rows, siemens (sets the slowest transition).
     pub slowest_conductance_s: f64,
-    /// Delay without load, picoseconds: `ln 2 · C_own / min(Gu+Gd)`.
+    /// Step-input delay without load, picoseconds: `ln 2 · C_own / min(Gu+Gd)`.
+    pub step_intrinsic_ps: f64,
+    /// Step-input delay per unit load (one kit gate capacitance),
+    /// picoseconds: `ln 2 · C_gate / min(Gu+Gd)`.
+    pub step_per_load_ps: f64,
+    /// The library's delay without load, picoseconds: the fit to the
+    /// slowest arc driven by the reference edges when the kit has an
+    /// inverter (see [`characterize`]), else the step figure.
     pub intrinsic_ps: f64,
-    /// Delay per unit load (one kit gate capacitance), picoseconds.
+    /// The library's delay per unit load, picoseconds (as `intrinsic_ps`).
     pub per_load_ps: f64,
+    /// The fit behind `intrinsic_ps` and `per_load_ps` (`None` when the kit
+    /// has no inverter and the step figures are used).
+    pub delay_fit: Option<DelayFit>,
     /// Energy per output toggle of the own capacitance, attojoules.
     pub switch_energy_aj: f64,
     /// Energy per output toggle per unit load, attojoules.
@@ -104,6 +126,9 @@ pub struct Characterization {
     pub kit_sha256: String,
     /// One entry per kit cell, in kit order.
     pub cells: Vec<CellCharacter>,
+    /// The input edges the delays were characterised with (`None` when the
+    /// kit has no inverter: the delays are then the step figures).
+    pub reference: Option<ReferenceEdges>,
 }
 
 /// Hex SHA-256 of a file's bytes.
@@ -126,11 +151,53 @@ pub fn characterize(kit: DeviceKit) -> Result<Characterization, SourceError> {
         let down = load_cell_table(&kit, cell, &cell.pull_down)?;
         cells.push(characterize_cell(&kit, cell, up, down)?);
     }
+    let reference = reference_inverter(&kit, &cells);
+    if let Some(edges) = &reference {
+        for c in &mut cells {
+            let fit = fit_delay(
+                |load| stage(&kit, c, load),
+                c.truth,
+                c.kit_cell.inputs.len(),
+                edges,
+            );
+            c.intrinsic_ps = fit.intrinsic_ps;
+            c.per_load_ps = fit.per_load_ps;
+            c.delay_fit = Some(fit);
+        }
+    }
     Ok(Characterization {
         kit,
         kit_sha256,
         cells,
+        reference,
     })
+}
+
+/// Cell `c` driving `load` unit loads, as a stage to integrate.
+fn stage<'a>(kit: &DeviceKit, c: &'a CellCharacter, load: f64) -> Stage<'a> {
+    Stage {
+        pull_up: &c.pull_up,
+        pull_down: &c.pull_down,
+        supply_v: kit.supply_v,
+        logic_low_v: kit.logic_low_v,
+        logic_high_v: kit.logic_high_v,
+        capacitance_af: c.kit_cell.output_capacitance_af + load * kit.gate_capacitance_af,
+    }
+}
+
+/// The reference edges from the kit's first inverter (one input, output
+/// `!a`) driving [`REFERENCE_FANOUT`] unit loads; `None` without one (or
+/// when its stage has no capacitance or conductance to time).
+fn reference_inverter(kit: &DeviceKit, cells: &[CellCharacter]) -> Option<ReferenceEdges> {
+    let inverter = cells
+        .iter()
+        .find(|c| c.kit_cell.inputs.len() == 1 && c.truth == 0b01)?;
+    reference_edges(
+        &stage(kit, inverter, REFERENCE_FANOUT),
+        inverter.kit_cell.output_capacitance_af,
+        &inverter.kit_cell.name,
+        REFERENCE_FANOUT,
+    )
 }
 
 /// A table file shown as the user would open it (kit folder + written path).
@@ -391,8 +458,11 @@ pub fn characterize_cell(
         pull_down_on_off,
         curves,
         slowest_conductance_s,
+        step_intrinsic_ps: intrinsic_ps,
+        step_per_load_ps: per_load_ps,
         intrinsic_ps,
         per_load_ps,
+        delay_fit: None,
         switch_energy_aj,
         switch_energy_per_load_aj,
         input_load: cell.gate_capacitance_af / kit.gate_capacitance_af,

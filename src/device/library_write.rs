@@ -2,7 +2,8 @@
 //!
 //! Each cell gets the usual fields, derived rather than typed in: function
 //! (as a truth table), area and devices from the kit, the delay model
-//! `intrinsic + per_load · load` from the RC charge of the slowest row,
+//! `intrinsic + per_load · load` fitted to the slowest arc driven by the
+//! reference edges (see [`super::characterize`]),
 //! input load in units of the kit's gate capacitance, switching energy
 //! `½·C_own·Vdd²` and per unit load `½·C_gate·Vdd²`, and per-row leakage
 //! `Vdd · I` — plus the `electrical`
@@ -10,7 +11,7 @@
 //! six significant digits so the file reads well and is stable.
 
 use super::characterize::{CellCharacter, Characterization};
-use crate::library::electrical::{CurveRecord, DerivedFrom, Electrical, TableRecord};
+use crate::library::electrical::{CurveRecord, DelayInput, DerivedFrom, Electrical, TableRecord};
 use serde_json::{json, Value};
 use std::path::{Component, Path, PathBuf};
 
@@ -177,6 +178,11 @@ pub fn library_json_of(ch: &Characterization, library_dir: &Path, choice: &Libra
         logic_low_v: kit.logic_low_v,
         logic_high_v: kit.logic_high_v,
         unit_load_af: kit.gate_capacitance_af,
+        delay_input: ch.reference.as_ref().map(|r| DelayInput {
+            cell: r.cell.clone(),
+            fanout: r.fanout,
+            stage_delay: round6(r.stage_delay_ps),
+        }),
     };
     let mut root = json!({
         "format": crate::library::FORMAT,

@@ -193,6 +193,32 @@ pub struct MarginOutcome {
     pub failing_nets: Vec<String>,
 }
 
+impl MarginOutcome {
+    /// The outcome as the JSON object `margin` of the map report and of
+    /// study result lines (docs/device-data.md, "Margin-aware mapping").
+    pub fn summary_json(&self, lib: &Library) -> serde_json::Value {
+        serde_json::json!({
+            "min_margin_mv": self.min_margin_v * 1e3,
+            "holds": self.holds,
+            "left_out": self.left_out,
+            "restorer": self.restorer,
+            "restored_nets": self.restored_nets,
+            "restoring_cells": self.restoring_cells,
+            "restoring_area": self.restoring_area,
+            "delay_before": self.delay_before,
+            "delay_after": self.delay_after,
+            "static_before_nw": self.static_before_nw,
+            "static_after_nw": self.static_after_nw,
+            "worst_margin_before_mv": self.worst_before_v.map(|v| v * 1e3),
+            "worst_margin_mv": self.levels.worst_margin_v().map(|v| v * 1e3),
+            "covers": self.covers,
+            "rounds": self.rounds,
+            "failing_nets": self.failing_nets,
+            "units": {"area": lib.units.area, "delay": lib.units.delay},
+        })
+    }
+}
+
 /// The cells of `lib` whose own noise margin is below `min_margin_v`.
 pub fn weak_cells(lib: &Library, data: &ElectricalData, min_margin_v: f64) -> Vec<LeftOut> {
     lib.cells

@@ -22,6 +22,7 @@ pub mod library_write;
 pub mod margin;
 pub mod report;
 pub mod spice;
+pub mod switching;
 pub mod table;
 pub mod table_csv;
 pub mod table_json;

@@ -405,10 +405,10 @@ fn figures_rows(c: &CellCharacter, supply_v: f64) -> Vec<(String, String)> {
             format!("{:.1} / {:.1}", c.pull_up_on_off, c.pull_down_on_off),
         ),
         (
-            "delay (slowest row)".into(),
+            "delay (slowest arc; step input)".into(),
             format!(
-                "{:.3} ps + {:.3} ps per unit load",
-                c.intrinsic_ps, c.per_load_ps
+                "{:.3} ps + {:.3} ps per unit load (step: {:.3} + {:.3})",
+                c.intrinsic_ps, c.per_load_ps, c.step_intrinsic_ps, c.step_per_load_ps
             ),
         ),
         (
@@ -442,7 +442,8 @@ td,th{{border:1px solid #ccc;padding:3px 8px;text-align:right}}th{{background:#f
 .maps svg{{margin-right:6px}}.cell{{border-top:2px solid #444;margin-top:24px}} .weak{{color:#b00;font-weight:bold}}</style></head><body>\
 <h1>Characterisation of {name}</h1><p>{desc}</p><p>Kit <code>{kit}</code> (SHA-256 {sha}); supply {vdd} V, logic inputs {lo} V and {hi} V, \
 unit load {cg} aF. Output levels from the divider V = Vdd·Gu/(Gu+Gd); thresholds where the transfer gain is 1 \
-(Rabaey, Chandrakasan and Nikolić, <i>Digital Integrated Circuits</i>, 2003); delay t50 = ln 2 · C/(Gu+Gd) of the slowest row.</p>",
+(Rabaey, Chandrakasan and Nikolić, <i>Digital Integrated Circuits</i>, 2003); delay of the slowest arc with the input driven by a fanout-of-four inverter chain's edge, \
+integrated from the tables and fitted as intrinsic + per_load · load (docs/device-data.md); the step-input figure is t50 = ln 2 · C/(Gu+Gd) of the slowest row.</p>",
         name = escape(&ch.kit.name),
         desc = escape(&ch.kit.description),
         kit = escape(&ch.kit.file),

@@ -112,6 +112,31 @@ pub fn load_models(
     })
 }
 
+/// Loads the tables and electrical data of the characterised library `lib`
+/// loaded from `lib_spec` (a file, or a built-in name whose tables lie under
+/// `libraries/`); the error is one line for the user.
+pub fn load_spec_models(
+    lib: &Library,
+    lib_spec: &str,
+) -> Result<(DeckModels, ElectricalData), String> {
+    let (text, dir, shown) = if let Some(text) = crate::library::builtin_text(lib_spec) {
+        (
+            text.to_string(),
+            std::path::PathBuf::from("libraries"),
+            format!("<builtin:{lib_spec}>"),
+        )
+    } else {
+        let path = Path::new(lib_spec);
+        let bytes = std::fs::read(path).map_err(|e| format!("{lib_spec}: cannot read: {e}"))?;
+        let text = crate::diag::utf8_text(lib_spec, bytes).map_err(|e| e.to_string())?;
+        let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
+        (text, dir, lib_spec.to_string())
+    };
+    let data = crate::library::electrical::read_electrical(&text);
+    let models = load_models(lib, &data, &dir, &shown).map_err(|e| e.to_string())?;
+    Ok((models, data))
+}
+
 /// What drives the primary inputs.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Stimulus {

@@ -97,6 +97,25 @@ pub struct DerivedFrom {
     pub logic_high_v: f64,
     /// Gate capacitance that is one unit of load, attofarads.
     pub unit_load_af: f64,
+    /// The input edges the delay model was characterised with; absent in
+    /// files whose delays are step-input figures (older files).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub delay_input: Option<DelayInput>,
+}
+
+/// How the delay of every arc was measured: its input driven by the
+/// steady-state edge of a chain of `cell`, each driving `fanout` unit
+/// loads (docs/device-data.md, "Delay").
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DelayInput {
+    /// The reference cell (the kit's inverter).
+    pub cell: String,
+    /// Its load in unit loads.
+    pub fanout: f64,
+    /// Delay of one reference stage in the settled chain (mean of rise and
+    /// fall), in the library's delay unit.
+    pub stage_delay: f64,
 }
 
 /// The electrical data of a library: its `derived_from` record and the

@@ -330,7 +330,7 @@ impl Reader {
             if let Err(e) = serde_json::from_value::<DerivedFrom>(value.clone()) {
                 self.problem(
                     &child(&top, "derived_from"),
-                    format!("not a derived_from record (kit, kit_sha256, tool, logic_low_v, logic_high_v, unit_load_af): {e}"),
+                    format!("not a derived_from record (kit, kit_sha256, tool, logic_low_v, logic_high_v, unit_load_af, optional delay_input {{cell, fanout, stage_delay}}): {e}"),
                 );
             }
         }

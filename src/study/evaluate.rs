@@ -6,12 +6,17 @@
 //! static timing, the switching-activity energy model, and the count of
 //! majority-class cells. The result is a [`StudyRecord`] whose fields are the
 //! `map` report's plus the study's own. [`compare`] runs it for every
-//! benchmark × library pair in parallel.
+//! benchmark × library pair in parallel. With a required noise margin
+//! (`min_margin_mv`) the mapping is margin-aware, as `map --min-margin`
+//! ([`crate::device::margin::map_with_margin`]), on a characterised
+//! library whose level model ([`LibraryLevels`]) the caller loads once.
 
 use super::mapped_energy::mapped_energy;
 use super::plan::{Goal, VerifyMode};
 use super::power::Stimulus;
 use super::record::{count_majority_cells, StudyError, StudyRecord};
+use crate::device::levels::{LevelModel, LevelOptions};
+use crate::library::electrical::ElectricalData;
 use crate::library::Library;
 use crate::mapper::{self, MapOptions};
 use crate::netlist::{self, Report, Verified};
@@ -32,6 +37,34 @@ pub struct EvaluateOptions {
     pub verify: VerifyMode,
     /// Patterns of the energy simulation.
     pub stimulus: Stimulus,
+    /// Noise margin every net must keep, millivolts (`None`: plain
+    /// mapping). Needs the library's [`LibraryLevels`].
+    pub min_margin_mv: Option<f64>,
+}
+
+/// What margin-aware evaluation needs of a characterised library: its
+/// level model (tables and thresholds) and electrical blocks.
+#[derive(Clone, Debug)]
+pub struct LibraryLevels {
+    /// Level model built from the library's tables.
+    pub model: LevelModel,
+    /// The library's electrical data.
+    pub data: ElectricalData,
+}
+
+impl LibraryLevels {
+    /// Loads the tables of `library`, read from `spec` (a file, or a
+    /// built-in name); an error for a library without electrical data.
+    pub fn load(library: &Library, spec: &str) -> Result<LibraryLevels, StudyError> {
+        let (models, data) =
+            crate::device::spice::load_spec_models(library, spec).map_err(|e| {
+                StudyError::Input(format!("min_margin needs a characterised library: {e}"))
+            })?;
+        Ok(LibraryLevels {
+            model: LevelModel::new(library, &models, &data),
+            data,
+        })
+    }
 }
 
 impl Default for EvaluateOptions {
@@ -43,6 +76,7 @@ impl Default for EvaluateOptions {
             cuts_per_node: None,
             verify: VerifyMode::Full,
             stimulus: Stimulus::default(),
+            min_margin_mv: None,
         }
     }
 }
@@ -80,6 +114,20 @@ pub fn evaluate(
     library: &Library,
     options: &EvaluateOptions,
 ) -> Result<StudyRecord, StudyError> {
+    evaluate_with_levels(benchmark, network, library, None, options)
+}
+
+/// [`evaluate`] with the library's level model, which a required margin
+/// (`options.min_margin_mv`) needs. The record then carries
+/// `min_margin_mv` and the `margin` object of the map report; a margin
+/// that cannot be kept is recorded (`margin.holds` false), not an error.
+pub fn evaluate_with_levels(
+    benchmark: &str,
+    network: &Network,
+    library: &Library,
+    levels: Option<&LibraryLevels>,
+    options: &EvaluateOptions,
+) -> Result<StudyRecord, StudyError> {
     let mut map_options = MapOptions {
         goal: mapper_goal(options.goal),
         ..MapOptions::default()
@@ -92,8 +140,32 @@ pub fn evaluate(
     }
     let mut seconds = IndexMap::new();
     let start = Instant::now();
-    let outcome = mapper::map_detailed(network, library, &map_options)
-        .map_err(|e| StudyError::Input(format!("{benchmark} on {}: {e}", library.name)))?;
+    let (outcome, margin) = match options.min_margin_mv {
+        None => (
+            mapper::map_detailed(network, library, &map_options)
+                .map_err(|e| StudyError::Input(format!("{benchmark} on {}: {e}", library.name)))?,
+            None,
+        ),
+        Some(mv) => {
+            let levels = levels.ok_or_else(|| {
+                StudyError::Input(format!(
+                    "{benchmark} on {}: min_margin needs a characterised library",
+                    library.name
+                ))
+            })?;
+            let m = crate::device::margin::map_with_margin(
+                network,
+                library,
+                &levels.model,
+                &levels.data,
+                &map_options,
+                mv / 1e3,
+                &LevelOptions::default(),
+            )
+            .map_err(|e| StudyError::Input(format!("{benchmark} on {}: {e}", library.name)))?;
+            (m.outcome.clone(), Some(m))
+        }
+    };
     let mapped = outcome.netlist;
     seconds.insert("map".to_string(), start.elapsed().as_secs_f64());
 
@@ -137,6 +209,10 @@ pub fn evaluate(
         m.insert("benchmark".into(), benchmark.into());
         m.insert("energy_per_op".into(), energy.energy_per_op.into());
         m.insert("static_power".into(), energy.static_power.into());
+        if let Some(margin) = &margin {
+            m.insert("min_margin_mv".into(), (margin.min_margin_v * 1e3).into());
+            m.insert("margin".into(), margin.summary_json(library));
+        }
         if let Some(serde_json::Value::Object(units)) = m.get_mut("units") {
             units.insert("energy".into(), library.units.energy.clone().into());
             units.insert("power".into(), library.units.power.clone().into());
@@ -167,6 +243,18 @@ pub fn compare_reporting(
     options: &EvaluateOptions,
     done: impl Fn() + Sync,
 ) -> Result<Vec<StudyRecord>, StudyError> {
+    compare_with_levels(benchmarks, libraries, &[], options, done)
+}
+
+/// [`compare_reporting`] with each library's level model (`levels[l]` for
+/// `libraries[l]`; missing entries are `None`), for a required margin.
+pub fn compare_with_levels(
+    benchmarks: &[(String, Network)],
+    libraries: &[Library],
+    levels: &[Option<LibraryLevels>],
+    options: &EvaluateOptions,
+    done: impl Fn() + Sync,
+) -> Result<Vec<StudyRecord>, StudyError> {
     use rayon::prelude::*;
     let pairs: Vec<(usize, usize)> = (0..benchmarks.len())
         .flat_map(|b| (0..libraries.len()).map(move |l| (b, l)))
@@ -174,7 +262,13 @@ pub fn compare_reporting(
     pairs
         .par_iter()
         .map(|&(b, l)| {
-            let record = evaluate(&benchmarks[b].0, &benchmarks[b].1, &libraries[l], options);
+            let record = evaluate_with_levels(
+                &benchmarks[b].0,
+                &benchmarks[b].1,
+                &libraries[l],
+                levels.get(l).and_then(Option::as_ref),
+                options,
+            );
             done();
             record
         })

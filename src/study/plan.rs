@@ -78,6 +78,10 @@ pub struct PlanOptions {
     /// Patterns simulated for energy.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub patterns: Option<u64>,
+    /// Noise margin in millivolts every net must keep: margin-aware mapping
+    /// as `map --min-margin` (characterised libraries only).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub min_margin: Option<f64>,
 }
 
 /// One entry of the plan's `benchmarks` list.
@@ -412,6 +416,14 @@ impl Plan {
                 return Err(here(
                     "\"input_probability\"",
                     format!("input_probability {p} is not between 0 and 1"),
+                ));
+            }
+        }
+        if let Some(mv) = raw.options.min_margin {
+            if !mv.is_finite() || mv < 0.0 {
+                return Err(here(
+                    "\"min_margin\"",
+                    format!("min_margin {mv} must be a non-negative number of millivolts"),
                 ));
             }
         }

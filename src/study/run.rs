@@ -7,7 +7,7 @@
 //! study run at once (exit 2) instead of after hours of work or on another
 //! machine. Of the netlist files only those the shard still needs are read.
 
-use super::evaluate::{evaluate, EvaluateOptions};
+use super::evaluate::{evaluate_with_levels, EvaluateOptions, LibraryLevels};
 use super::jobs::{run_jobs, RunOptions, StudySummary};
 use super::plan::{BenchmarkSource, Plan, Shard, VerifyMode};
 use super::power::{Stimulus, DEFAULT_PATTERNS};
@@ -106,6 +106,7 @@ pub fn plan_evaluate_options(plan: &Plan, goal: super::plan::Goal) -> EvaluateOp
             patterns: o.patterns.unwrap_or(DEFAULT_PATTERNS),
             seed: 1,
         },
+        min_margin_mv: o.min_margin,
     }
 }
 
@@ -119,15 +120,20 @@ pub fn run_study(
 ) -> Result<StudySummary, StudyError> {
     let jobs = plan.shard_jobs(options.shard);
     let mut libraries: HashMap<usize, Library> = HashMap::new();
+    let mut levels: HashMap<usize, LibraryLevels> = HashMap::new();
     for (index, spec) in plan.libraries.iter().enumerate() {
-        let lib = load_library(&spec.load).map_err(|err| {
+        let at = |err: StudyError| {
             let (line, column) = spec.position;
             StudyError::Input(format!(
                 "{}:{line}:{column}: library '{}': {err}",
                 plan.path.display(),
                 spec.spec
             ))
-        })?;
+        };
+        let lib = load_library(&spec.load).map_err(at)?;
+        if plan.options.min_margin.is_some() {
+            levels.insert(index, LibraryLevels::load(&lib, &spec.load).map_err(at)?);
+        }
         libraries.insert(index, lib);
     }
     let mut benchmarks: HashMap<usize, Network> = HashMap::new();
@@ -174,10 +180,11 @@ pub fn run_study(
             else {
                 return Err(StudyError::Internal("job inputs were not loaded".into()));
             };
-            let mut record = evaluate(
+            let mut record = evaluate_with_levels(
                 &bench.name,
                 network,
                 library,
+                levels.get(&job.library),
                 &plan_evaluate_options(plan, job.goal),
             )?;
             record.extra.insert(
