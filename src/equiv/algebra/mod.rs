@@ -15,6 +15,7 @@
 //!
 //! How the parts fit:
 //! - [`words`] finds the input words A, B, C and the output word;
+//! - `cuts` enumerates cuts with truth tables, through existing nodes too;
 //! - `recover` turns the network into XOR, majority and AND gates with
 //!   full and half adders made explicit, so the polynomial stays linear
 //!   between adder columns;
@@ -30,6 +31,7 @@
 //! patterns, and searches longer when the polynomial blows up (a wrong
 //! circuit's remainder can grow to the term limit before it shows).
 
+mod cuts;
 mod poly;
 mod recover;
 mod reference;
@@ -293,11 +295,12 @@ fn rewrite(
     spec: ArithSpec,
     words: &Words,
     limit: usize,
+    extended: bool,
     stats: &mut AlgebraStats,
 ) -> Pass {
     let outs = net.combinational_outputs();
     let roots: Vec<_> = words.outputs.iter().map(|&p| outs[p]).collect();
-    let rec = recover::recover(net, &roots);
+    let rec = recover::recover(net, &roots, extended);
     stats.gates = rec.gates.len();
     stats.xor3 = rec
         .gates
@@ -389,7 +392,18 @@ pub fn prove_against_spec(
         (0, s) => s,
         (l, s) => l.min(s),
     };
-    let mut pass = rewrite(net, spec, words, first_limit, &mut stats);
+    let mut pass = rewrite(net, spec, words, first_limit, false, &mut stats);
+    // Structural cuts miss the full adders that cells of two inputs split;
+    // cuts through existing nodes find them (but on some netlists pair a sum
+    // with the wrong carry, so they are the second try).
+    let mut extended = false;
+    if let (Pass::Blown(_), false) = (&pass, spec == ArithSpec::Add) {
+        let retry = rewrite(net, spec, words, first_limit, true, &mut stats);
+        if let Pass::Finished(_) = retry {
+            pass = retry;
+            extended = true;
+        }
+    }
     if let Pass::Blown(_) = pass {
         // A blow-up: most likely a wrong circuit; look harder for a pattern
         // before rewriting again up to the term limit. (An adder goes on to
@@ -403,7 +417,7 @@ pub fn prove_against_spec(
             }
         }
         if first_limit != limit {
-            pass = rewrite(net, spec, words, limit, &mut stats);
+            pass = rewrite(net, spec, words, limit, extended, &mut stats);
         }
     }
     let outcome = match pass {

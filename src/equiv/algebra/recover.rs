@@ -10,19 +10,21 @@
 //! multipliers by combining SAT and computer algebra", FMCAD 2019, name
 //! these vanishing monomials).
 //!
-//! So each node's function is computed over its cuts of at most three
-//! leaves (truth tables of eight rows), and a node whose function over some
-//! cut is a three-input XOR or majority in any phase (or a two-input XOR)
-//! is rewritten as that gate over the cut's leaves. The recovered circuit
+//! So each node's function is computed over its cuts (module `cuts`: up to
+//! four leaves, and cuts through existing nodes over two of the leaves),
+//! and a node whose function over some cut of three leaves is a
+//! three-input XOR or majority in any phase (or over two leaves a
+//! two-input XOR) is rewritten as that gate over the cut's leaves. The recovered circuit
 //! computes the same functions node for node, so proving it proves the
 //! network; the logic inside recovered gates simply drops out.
 
-use rustc_hash::FxHashSet;
+use rustc_hash::{FxHashMap, FxHashSet};
+
+use super::cuts::{
+    enumerate_cuts, enumerate_plain_cuts, is_xor, majority_phases, row_mask, Cut, XOR2, XOR3,
+};
 
 use crate::network::{Lit, Network, NodeId, NodeKind};
-
-/// Cuts kept per node (smallest first).
-const CUTS_PER_NODE: usize = 24;
 
 /// A gate of the recovered circuit over its variables (inputs and earlier
 /// gates), fanins as `(variable, complemented)`.
@@ -49,175 +51,6 @@ pub(crate) struct Recovered {
     pub roots: Vec<(u32, bool)>,
 }
 
-/// A cut: sorted leaves (at most three node indices) and the function over
-/// them (bit r: value when leaf k has bit k of r).
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-struct Cut {
-    leaves: [u32; 3],
-    size: u8,
-    truth: u8,
-}
-
-impl Cut {
-    fn leaves(&self) -> &[u32] {
-        &self.leaves[..self.size as usize]
-    }
-}
-
-/// The truth table of a cut function moved onto a superset of its leaves.
-fn expand(truth: u8, from: &[u32], to: &[u32]) -> u8 {
-    let positions: Vec<usize> = from
-        .iter()
-        .map(|l| to.iter().position(|t| t == l).expect("superset"))
-        .collect();
-    let mut out = 0u8;
-    for row in 0..(1usize << to.len()) {
-        let mut index = 0;
-        for (k, &p) in positions.iter().enumerate() {
-            index |= ((row >> p) & 1) << k;
-        }
-        if (truth >> index) & 1 == 1 {
-            out |= 1 << row;
-        }
-    }
-    out
-}
-
-fn merged_leaves(cuts: &[&Cut]) -> Option<Vec<u32>> {
-    let mut leaves: Vec<u32> = cuts
-        .iter()
-        .flat_map(|c| c.leaves().iter().copied())
-        .collect();
-    leaves.sort_unstable();
-    leaves.dedup();
-    (leaves.len() <= 3).then_some(leaves)
-}
-
-fn phase(truth: u8, complemented: bool, rows: usize) -> u8 {
-    let mask = ((1u16 << rows) - 1) as u8;
-    if complemented {
-        !truth & mask
-    } else {
-        truth & mask
-    }
-}
-
-/// Computes up to [`CUTS_PER_NODE`] cuts of every node of `net`.
-fn enumerate_cuts(net: &Network, needed: &[bool]) -> Vec<Vec<Cut>> {
-    let mut cuts: Vec<Vec<Cut>> = vec![Vec::new(); net.num_nodes()];
-    for id in net.node_ids() {
-        let i = id.index();
-        if !needed[i] {
-            continue;
-        }
-        let trivial = Cut {
-            leaves: [i as u32, 0, 0],
-            size: 1,
-            truth: 0b10,
-        };
-        if !net.is_gate(id) {
-            cuts[i] = vec![trivial];
-            continue;
-        }
-        let fanins = net.fanins(id);
-        let kind = net.kind(id);
-        let mut found: Vec<Cut> = Vec::new();
-        let mut combine = |chosen: &[&Cut]| {
-            let Some(leaves) = merged_leaves(chosen) else {
-                return;
-            };
-            let rows = 1usize << leaves.len();
-            let t: Vec<u8> = chosen
-                .iter()
-                .zip(fanins)
-                .map(|(c, f)| {
-                    phase(
-                        expand(c.truth, c.leaves(), &leaves),
-                        f.is_complemented(),
-                        rows,
-                    )
-                })
-                .collect();
-            let truth = match kind {
-                NodeKind::And => t[0] & t[1],
-                NodeKind::Xor => t[0] ^ t[1],
-                NodeKind::Maj => (t[0] & t[1]) | (t[0] & t[2]) | (t[1] & t[2]),
-                NodeKind::Const | NodeKind::Input => unreachable!("gates only"),
-            };
-            let mut arr = [0u32; 3];
-            arr[..leaves.len()].copy_from_slice(&leaves);
-            let cut = Cut {
-                leaves: arr,
-                size: leaves.len() as u8,
-                truth,
-            };
-            if !found.iter().any(|c| c.leaves() == cut.leaves()) {
-                found.push(cut);
-            }
-        };
-        let c0 = &cuts[fanins[0].node().index()];
-        let c1 = &cuts[fanins[1].node().index()];
-        if kind == NodeKind::Maj {
-            let c2 = &cuts[fanins[2].node().index()];
-            for x in c0 {
-                for y in c1 {
-                    for z in c2 {
-                        combine(&[x, y, z]);
-                    }
-                }
-            }
-        } else {
-            for x in c0 {
-                for y in c1 {
-                    combine(&[x, y]);
-                }
-            }
-        }
-        // Keep the cuts that can matter: XOR and majority functions first,
-        // then small cuts (the fanins' own), then the rest.
-        found.sort_by_key(|c| (rank(c), c.size));
-        found.truncate(CUTS_PER_NODE - 1);
-        found.push(trivial);
-        cuts[i] = found;
-    }
-    cuts
-}
-
-/// XOR of the leaves, as 8-row tables for 2 and 3 leaves.
-const XOR2: u8 = 0b0110;
-const XOR3: u8 = 0x96;
-
-/// The three-input majority with input phases `phases` (bit k: leaf k
-/// complemented), as an 8-row table.
-fn majority_table(phases: u8) -> u8 {
-    let mut t = 0u8;
-    for row in 0..8u8 {
-        let v = row ^ phases;
-        if v.count_ones() >= 2 {
-            t |= 1 << row;
-        }
-    }
-    t
-}
-
-/// 0 for a cut whose function is an XOR or a majority, 1 for other cuts of
-/// at most two leaves, 2 for the rest.
-fn rank(cut: &Cut) -> u8 {
-    let t = cut.truth;
-    let interesting = match cut.size {
-        2 => t & 0xF == XOR2 || t & 0xF == !XOR2 & 0xF,
-        3 => t == XOR3 || t == !XOR3 || majority_phases(t).is_some(),
-        _ => false,
-    };
-    if interesting {
-        0
-    } else if cut.size <= 2 {
-        1
-    } else {
-        2
-    }
-}
-
 /// What a node becomes in the recovered circuit, over node indices.
 enum Choice {
     Xor(Vec<u32>, bool),
@@ -225,40 +58,25 @@ enum Choice {
     Original,
 }
 
-fn majority_phases(truth: u8) -> Option<[bool; 3]> {
-    (0..8u8).find_map(|phases| {
-        let m = majority_table(phases);
-        // maj(x', y', z') complemented = maj of the complements.
-        let ph = if truth == m {
-            phases
-        } else if truth == !m {
-            phases ^ 7
-        } else {
-            return None;
-        };
-        Some([ph & 1 != 0, ph & 2 != 0, ph & 4 != 0])
-    })
-}
-
 /// A three-input XOR is only taken over leaves that some node's majority
 /// also uses (a full adder's sum and carry): flattening an XOR whose
 /// middle signal is used elsewhere anyway only hides that signal from the
 /// carry that pairs with it.
-fn choose(cuts: &[Cut], adder_leaves: &FxHashSet<[u32; 3]>) -> Choice {
+fn choose(cuts: &[Cut], adder_leaves: &FxHashSet<[u32; 4]>) -> Choice {
     let mut xor2 = None;
     for cut in cuts {
         let l = cut.leaves();
         match cut.size {
             3 => {
-                if (cut.truth == XOR3 || cut.truth == !XOR3) && adder_leaves.contains(&cut.leaves) {
+                if is_xor(cut) && adder_leaves.contains(&cut.leaves) {
                     return Choice::Xor(l.to_vec(), cut.truth != XOR3);
                 }
                 if let Some(ph) = majority_phases(cut.truth) {
                     return Choice::Maj([(l[0], ph[0]), (l[1], ph[1]), (l[2], ph[2])]);
                 }
             }
-            2 if xor2.is_none() && (cut.truth & 0xF == XOR2 || cut.truth & 0xF == !XOR2 & 0xF) => {
-                xor2 = Some(Choice::Xor(l.to_vec(), cut.truth & 0xF != XOR2));
+            2 if xor2.is_none() && is_xor(cut) => {
+                xor2 = Some(Choice::Xor(l.to_vec(), cut.truth != XOR2));
             }
             _ => {}
         }
@@ -267,11 +85,31 @@ fn choose(cuts: &[Cut], adder_leaves: &FxHashSet<[u32; 3]>) -> Choice {
 }
 
 /// Recovers XOR and majority gates in the cones of `roots` of `net`.
-pub(crate) fn recover(net: &Network, roots: &[Lit]) -> Recovered {
-    let n = net.num_nodes();
-    let cis = net.combinational_inputs();
-    // Cones of the roots, for cut enumeration.
-    let mut in_cone = vec![false; n];
+///
+/// Cuts may go through nodes built after the node itself (a sum computed
+/// before the XOR of two of its inputs that the carry uses); if such a
+/// choice ever closed a cycle, recovery runs again with cuts through earlier
+/// nodes only, where every leaf precedes its node.
+pub(crate) fn recover(net: &Network, roots: &[Lit], extended: bool) -> Recovered {
+    let in_cone = cone(net, roots);
+    if !extended {
+        let cuts = enumerate_plain_cuts(net, &in_cone);
+        return recover_over(net, roots, &cuts).expect("structural cuts form no cycle");
+    }
+    let cuts = enumerate_cuts(net, &in_cone, true);
+    let (merged, roots) = merge_equal_nodes(net, roots, &cuts);
+    let in_cone = cone(&merged, &roots);
+    let cuts = enumerate_cuts(&merged, &in_cone, true);
+    if let Some(rec) = recover_over(&merged, &roots, &cuts) {
+        return rec;
+    }
+    let cuts = enumerate_cuts(&merged, &in_cone, false);
+    recover_over(&merged, &roots, &cuts).expect("cuts through earlier nodes cannot close a cycle")
+}
+
+/// The nodes in the cones of `roots`.
+fn cone(net: &Network, roots: &[Lit]) -> Vec<bool> {
+    let mut in_cone = vec![false; net.num_nodes()];
     let mut stack: Vec<usize> = roots.iter().map(|l| l.node().index()).collect();
     while let Some(i) = stack.pop() {
         if std::mem::replace(&mut in_cone[i], true) {
@@ -283,46 +121,134 @@ pub(crate) fn recover(net: &Network, roots: &[Lit]) -> Recovered {
                 .map(|f| f.node().index()),
         );
     }
-    let cuts = enumerate_cuts(net, &in_cone);
-    let adder_leaves: FxHashSet<[u32; 3]> = cuts
+    in_cone
+}
+
+/// A copy of `net` (same combinational inputs in the same order) in which
+/// a node whose function over some cut equals, in either phase, an earlier
+/// node's function over the same leaves is replaced by that node, and the
+/// `roots` in the copy. Two nodes with equal tables over equal leaves are
+/// equal on every input, so the copy computes what `net` computes; merging
+/// them keeps a sum and its carry over one signal where the mapper built
+/// two copies of it (`x XOR y` and `u XOR v` with `x XOR y = u XOR v`).
+fn merge_equal_nodes(net: &Network, roots: &[Lit], cuts: &[Vec<Cut>]) -> (Network, Vec<Lit>) {
+    let mut seen: FxHashMap<([u32; 4], u16), u32> = FxHashMap::default();
+    let mut out = Network::new(net.name());
+    let mut map = vec![Lit::FALSE; net.num_nodes()];
+    for (k, id) in net.combinational_inputs().into_iter().enumerate() {
+        map[id.index()] = out
+            .add_input(format!("i{k}"))
+            .expect("distinct generated names");
+    }
+    let lit = |map: &[Lit], l: Lit| map[l.node().index()].xor(l.is_complemented());
+    for id in net.node_ids() {
+        let i = id.index();
+        if !net.is_gate(id) {
+            continue;
+        }
+        let mut equal = None;
+        for c in cuts[i].iter().filter(|c| c.size >= 2) {
+            if c.leaves().iter().any(|&l| l as usize >= i) {
+                continue;
+            }
+            // Tables in the phase whose first row is 0.
+            let flip = c.truth & 1 == 1;
+            let key = (
+                c.leaves,
+                if flip {
+                    !c.truth & row_mask(c.size)
+                } else {
+                    c.truth
+                },
+            );
+            match seen.get(&key) {
+                Some(&r) if equal.is_none() => equal = Some(map[r as usize].xor(flip)),
+                Some(_) => {}
+                None => {
+                    seen.insert(key, i as u32);
+                }
+            }
+        }
+        let f: Vec<Lit> = net.fanins(id).iter().map(|&l| lit(&map, l)).collect();
+        map[i] = match equal {
+            Some(l) => l,
+            None => match net.kind(id) {
+                NodeKind::And => out.and(f[0], f[1]),
+                NodeKind::Xor => out.xor(f[0], f[1]),
+                NodeKind::Maj => out.maj(f[0], f[1], f[2]),
+                NodeKind::Const | NodeKind::Input => unreachable!("gates only"),
+            },
+        };
+    }
+    let roots = roots.iter().map(|&l| lit(&map, l)).collect();
+    (out, roots)
+}
+
+fn choice_leaves(net: &Network, i: usize, choice: &Choice) -> Vec<usize> {
+    match choice {
+        Choice::Xor(leaves, _) => leaves.iter().map(|&l| l as usize).collect(),
+        Choice::Maj(lits) => lits.iter().map(|&(l, _)| l as usize).collect(),
+        Choice::Original => net
+            .fanins(NodeId(i as u32))
+            .iter()
+            .map(|f| f.node().index())
+            .collect(),
+    }
+}
+
+/// Chooses each needed node's gate from `cuts` and numbers the gates in
+/// depth-first post-order from the roots; `None` when the choices form a
+/// cycle.
+fn recover_over(net: &Network, roots: &[Lit], cuts: &[Vec<Cut>]) -> Option<Recovered> {
+    let n = net.num_nodes();
+    let cis = net.combinational_inputs();
+    let adder_leaves: FxHashSet<[u32; 4]> = cuts
         .iter()
         .flatten()
         .filter(|c| c.size == 3 && majority_phases(c.truth).is_some())
         .map(|c| c.leaves)
         .collect();
-    // Top-down choice of each needed node's gate.
-    let mut needed = vec![false; n];
-    for r in roots {
-        needed[r.node().index()] = true;
-    }
-    let mut choices: Vec<Option<Choice>> = (0..n).map(|_| None).collect();
-    for i in (0..n).rev() {
-        let id = NodeId(i as u32);
-        if !needed[i] || !net.is_gate(id) {
-            continue;
-        }
-        let choice = choose(&cuts[i], &adder_leaves);
-        match &choice {
-            Choice::Xor(leaves, _) => leaves.iter().for_each(|&l| needed[l as usize] = true),
-            Choice::Maj(lits) => lits.iter().for_each(|&(l, _)| needed[l as usize] = true),
-            Choice::Original => net
-                .fanins(id)
-                .iter()
-                .for_each(|f| needed[f.node().index()] = true),
-        }
-        choices[i] = Some(choice);
-    }
-    // Number the variables: inputs first, then needed gates bottom-up.
     let mut var = vec![u32::MAX; n];
     for (k, id) in cis.iter().enumerate() {
         var[id.index()] = k as u32;
     }
+    let mut choices: Vec<Option<Choice>> = (0..n).map(|_| None).collect();
+    // 0: not seen, 1: on the current path, 2: numbered.
+    let mut state = vec![0u8; n];
+    let mut order = Vec::new();
+    for r in roots {
+        let mut stack = vec![(r.node().index(), false)];
+        while let Some((i, done)) = stack.pop() {
+            if done {
+                state[i] = 2;
+                order.push(i);
+                continue;
+            }
+            match state[i] {
+                2 => continue,
+                1 => return None,
+                _ => {}
+            }
+            if !net.is_gate(NodeId(i as u32)) {
+                state[i] = 2;
+                continue;
+            }
+            state[i] = 1;
+            let choice = choose(&cuts[i], &adder_leaves);
+            stack.push((i, true));
+            for l in choice_leaves(net, i, &choice) {
+                if state[l] != 2 {
+                    stack.push((l, false));
+                }
+            }
+            choices[i] = Some(choice);
+        }
+    }
+    let order = index_first_order(net, &order, &choices);
     let mut gates = Vec::new();
     let lit = |var: &[u32], l: Lit| (var[l.node().index()], l.is_complemented());
-    for i in 0..n {
-        let Some(choice) = choices[i].take() else {
-            continue;
-        };
+    for i in order {
+        let choice = choices[i].take().expect("chosen before numbering");
         let id = NodeId(i as u32);
         let gate = match choice {
             Choice::Xor(leaves, out) => {
@@ -348,11 +274,50 @@ pub(crate) fn recover(net: &Network, roots: &[Lit]) -> Recovered {
         gates.push(gate);
     }
     let roots = roots.iter().map(|&l| lit(&var, l)).collect();
-    Recovered {
+    Some(Recovered {
         inputs: cis.len(),
         gates,
         roots,
+    })
+}
+
+/// The chosen gates `nodes` in a topological order of the recovered
+/// circuit that takes the smallest node index first whenever it can: the
+/// network's own order as far as the choices allow, which keeps the adder
+/// columns together during rewriting (a depth-first order scatters them).
+fn index_first_order(net: &Network, nodes: &[usize], choices: &[Option<Choice>]) -> Vec<usize> {
+    use std::cmp::Reverse;
+    use std::collections::BinaryHeap;
+    let mut waiting: FxHashMap<usize, usize> = FxHashMap::default();
+    let mut users: FxHashMap<usize, Vec<usize>> = FxHashMap::default();
+    let chosen: FxHashSet<usize> = nodes.iter().copied().collect();
+    let mut ready = BinaryHeap::new();
+    for &i in nodes {
+        let choice = choices[i].as_ref().expect("chosen");
+        let leaves: Vec<usize> = choice_leaves(net, i, choice)
+            .into_iter()
+            .filter(|l| chosen.contains(l))
+            .collect();
+        if leaves.is_empty() {
+            ready.push(Reverse(i));
+        }
+        for &l in &leaves {
+            users.entry(l).or_default().push(i);
+        }
+        waiting.insert(i, leaves.len());
     }
+    let mut order = Vec::with_capacity(nodes.len());
+    while let Some(Reverse(i)) = ready.pop() {
+        order.push(i);
+        for &u in users.get(&i).map(Vec::as_slice).unwrap_or(&[]) {
+            let w = waiting.get_mut(&u).expect("chosen");
+            *w -= 1;
+            if *w == 0 {
+                ready.push(Reverse(u));
+            }
+        }
+    }
+    order
 }
 
 #[cfg(test)]
@@ -379,12 +344,10 @@ mod tests {
         let yz = net.and(y, z);
         let c0 = net.or(xy, xz);
         let c = net.or(c0, yz);
-        let rec = recover(&net, &[s, c]);
+        let rec = recover(&net, &[s, c], false);
         assert_eq!(rec.inputs, 3);
         assert_eq!(rec.gates.len(), 2, "{:?}", rec.gates);
         assert!(matches!(&rec.gates[0], Gate::Xor(v, _) if v.len() == 3));
         assert!(matches!(&rec.gates[1], Gate::Maj(_)));
-        // Majority tables: maj(x, y, z) = 0xE8 (common practice).
-        assert_eq!(majority_table(0), 0xE8);
     }
 }
