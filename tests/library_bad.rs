@@ -362,3 +362,69 @@ fn a_library_without_cells_names_the_missing_field() {
     assert_eq!(problem.field.as_deref(), Some("cells"));
     assert_eq!(problem.cell, None);
 }
+
+#[test]
+fn a_wrong_type_names_the_json_type_found() {
+    // wrong-type.json with nand2's area replaced, through serde_json alone,
+    // by a value of each other JSON type (RFC 8259 section 3: null, false,
+    // true, strings, arrays, objects); the message names the type found.
+    let text = std::fs::read_to_string(bad("wrong-type")).unwrap();
+    let json: serde_json::Value = serde_json::from_str(&text).unwrap();
+    let cases = [
+        (serde_json::json!(null), "null"),
+        (serde_json::json!(true), "a boolean"),
+        (serde_json::json!("ten"), "a string"),
+        (serde_json::json!([10]), "a list"),
+        (serde_json::json!({"value": 10}), "an object"),
+    ];
+    for (value, found) in cases {
+        let mut edited = json.clone();
+        edited["cells"][1]["area"] = value;
+        let err = Library::from_json_str(&edited.to_string(), "edited.json").unwrap_err();
+        let want = format!("expected a number, found {found}");
+        assert!(
+            err.problems
+                .iter()
+                .any(|p| p.cell.as_deref() == Some("nand2")
+                    && p.field.as_deref() == Some("area")
+                    && p.message == want),
+            "{found}: {:#?}",
+            err.problems
+        );
+    }
+}
+
+#[test]
+fn a_missing_units_block_or_function_names_its_field() {
+    // docs/library-format.md: `units` is required, and a cell gives its
+    // function as `function` or `truth`. Removed through serde_json alone,
+    // each problem names the missing field (and the cell, for a cell field).
+    let text = std::fs::read_to_string(bad("wrong-type")).unwrap();
+    let mut json: serde_json::Value = serde_json::from_str(&text).unwrap();
+    json["cells"][1]["area"] = serde_json::json!(10.0);
+    let mut no_units = json.clone();
+    no_units.as_object_mut().unwrap().remove("units");
+    let err = Library::from_json_str(&no_units.to_string(), "x.json").unwrap_err();
+    assert!(
+        err.problems
+            .iter()
+            .any(|p| p.cell.is_none() && p.field.as_deref() == Some("units")),
+        "{:#?}",
+        err.problems
+    );
+    let mut no_function = json;
+    no_function["cells"][1]
+        .as_object_mut()
+        .unwrap()
+        .remove("function");
+    let err = Library::from_json_str(&no_function.to_string(), "x.json").unwrap_err();
+    assert!(
+        err.problems
+            .iter()
+            .any(|p| p.cell.as_deref() == Some("nand2")
+                && p.field.as_deref() == Some("function")
+                && p.message.contains("missing")),
+        "{:#?}",
+        err.problems
+    );
+}

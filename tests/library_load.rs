@@ -245,3 +245,104 @@ mod eval {
         }
     }
 }
+
+/// Post's five classes counted over every function of one to four inputs,
+/// against the published class sizes: 0-preserving and 1-preserving
+/// functions of n inputs number 2^(2^n - 1) each, self-dual ones 2^(2^(n-1))
+/// (one free value per pair of complementary rows), affine ones 2^(n+1), and
+/// monotone ones the Dedekind numbers 3, 6, 20, 168 (OEIS A000372). The
+/// classes are read from the reasons `missing_basics` gives for a set made
+/// of that one function, without the free constants.
+#[test]
+fn post_classes_have_their_published_sizes() {
+    use ribbonmap::library::completeness::{is_affine, is_monotone, missing_basics, SmallFunction};
+    const DEDEKIND: [u64; 5] = [2, 3, 6, 20, 168];
+    for (n, &dedekind) in DEDEKIND.iter().enumerate().skip(1) {
+        let rows = 1u64 << n;
+        let (mut zero, mut one, mut dual, mut affine, mut monotone) = (0u64, 0, 0, 0, 0);
+        for truth in 0..(1u64 << rows) {
+            let f = SmallFunction { truth, inputs: n };
+            let reasons = missing_basics(&[f], false);
+            let has = |words: &str| reasons.iter().any(|r| r.contains(words));
+            zero += has("outputs 0 when all its inputs are 0") as u64;
+            one += has("outputs 1 when all its inputs are 1") as u64;
+            dual += has("self-dual") as u64;
+            let a = has("every cell is affine");
+            let m = has("every cell is monotone");
+            assert_eq!(a, is_affine(f), "{n} inputs, truth {truth:#x}");
+            assert_eq!(m, is_monotone(f), "{n} inputs, truth {truth:#x}");
+            affine += a as u64;
+            monotone += m as u64;
+            // With the constants free only "monotone" and "affine" can fail
+            // (the constants are neither preserving nor self-dual).
+            let free = missing_basics(&[f], true);
+            assert_eq!(free.len(), a as usize + m as usize, "{n} inputs, {free:?}");
+        }
+        let half_rows = 1u32 << (n - 1);
+        assert_eq!(zero, 1u64 << (rows - 1), "0-preserving, {n} inputs");
+        assert_eq!(one, 1u64 << (rows - 1), "1-preserving, {n} inputs");
+        assert_eq!(dual, 1u64 << half_rows, "self-dual, {n} inputs");
+        assert_eq!(affine, 1u64 << (n + 1), "affine, {n} inputs");
+        assert_eq!(monotone, dedekind, "monotone, {n} inputs");
+    }
+}
+
+#[test]
+fn names_and_pins_must_be_identifiers() {
+    // docs/library-format.md: a cell name is an identifier; the loader's
+    // message says what one is (letters, digits and '_', starting with a
+    // letter or '_', the usual rule of programming languages, common
+    // practice). Underscores anywhere and digits after the first character
+    // are fine; a leading digit, a dash or a dot is not.
+    let rename = |from: &str, to: &str| MINIMAL.replacen(from, to, 1);
+    for good in ["nand_2", "_nand2", "N2_"] {
+        let text = rename(r#""name": "nand2""#, &format!(r#""name": "{good}""#));
+        let lib = Library::from_json_str(&text, "x.json").unwrap_or_else(|e| panic!("{good}: {e}"));
+        assert!(lib.cell(good).is_some(), "{good}");
+    }
+    for bad in ["2nand", "nand-2", "nand.2", ""] {
+        let text = rename(r#""name": "nand2""#, &format!(r#""name": "{bad}""#));
+        let err = Library::from_json_str(&text, "x.json").unwrap_err();
+        assert!(
+            err.to_string()
+                .contains(&format!("'{bad}' is not a valid name")),
+            "{bad}: {err}"
+        );
+    }
+    // The same rule for input pins.
+    let text = MINIMAL.replacen(
+        r#"["a", "b"], "output": "y", "function": "~(a & b)""#,
+        r#"["a_1", "b_2"], "output": "y", "function": "~(a_1 & b_2)""#,
+        1,
+    );
+    assert_eq!(
+        Library::from_json_str(&text, "x.json").unwrap().cells[0].truth,
+        0x7
+    );
+}
+
+#[test]
+fn a_bad_expression_is_quoted_and_long_ones_are_cut_at_sixty_characters() {
+    // The message quotes the expression (so the column can be read against
+    // it); one longer than 60 characters is cut to its first 60 and an
+    // ellipsis, keeping the message one line (the loader's documented
+    // behaviour in src/library/load.rs, checked by counting characters here).
+    let text = MINIMAL.replacen("~(a & b)", "~(a & )", 1);
+    let err = Library::from_json_str(&text, "x.json")
+        .unwrap_err()
+        .to_string();
+    assert!(
+        err.contains(r#"bad expression "~(a & )" at column 7"#),
+        "{err}"
+    );
+    let long = format!("{}(a & )", "a & b & ".repeat(10));
+    let text = MINIMAL.replacen("~(a & b)", &long, 1);
+    let err = Library::from_json_str(&text, "x.json")
+        .unwrap_err()
+        .to_string();
+    let first_sixty: String = long.chars().take(60).collect();
+    assert!(
+        err.contains(&format!("bad expression \"{first_sixty}…\" at column 86")),
+        "{err}"
+    );
+}

@@ -142,3 +142,24 @@ fn errors_carry_the_column() {
         assert!(e.message.contains(words), "{text}: {e}");
     }
 }
+
+#[test]
+fn an_operator_chain_longer_than_the_documented_limit_is_refused_at_its_operator() {
+    // docs/library-format.md: a chain of binary operators may be at most 2000
+    // long. A chain of n operands written "a OP a OP ..." is n levels high;
+    // 2000 operands parse, 2001 do not, and the error points at the operator
+    // that makes the chain too long: the 2000th, at column 4 * 2000 - 1 =
+    // 7999 (each "a OP " is four characters; hand arithmetic).
+    for op in ["&", "^", "|"] {
+        let ok = vec!["a"; 2000].join(&format!(" {op} "));
+        let value = parse_expression(&ok, &["a"]).unwrap().truth(1);
+        // a & a & ... = a, a | a | ... = a, and 2000 a's XORed cancel to 0
+        // (common practice).
+        assert_eq!(value, if op == "^" { 0b00 } else { 0b10 }, "{op}");
+        let long = vec!["a"; 2001].join(&format!(" {op} "));
+        let e = parse_expression(&long, &["a"]).unwrap_err();
+        assert_eq!(e.column, 7999, "{op}: {e}");
+        assert!(e.message.contains("operators deep"), "{op}: {e}");
+        assert_eq!(long.chars().nth(7998), op.chars().next());
+    }
+}

@@ -67,3 +67,26 @@ fn hex_and_binary_text() {
     assert_eq!(TruthTable::variable(6, 7).count_ones(), 64);
     assert_eq!(TruthTable::one(7).count_ones(), 128);
 }
+
+#[test]
+fn truth_words_parse_up_to_six_inputs() {
+    use ribbonmap::truth::parse_truth_word;
+    // The six-input parity function, row by row from the popcount of the row
+    // (integer arithmetic): written in hex with Rust's own formatter, in
+    // binary most significant row first (docs/library-format.md).
+    let parity = (0..64u64).fold(0u64, |acc, r| acc | (((r.count_ones() & 1) as u64) << r));
+    assert_eq!(parse_truth_word(&format!("{parity:#018x}"), 6), Ok(parity));
+    assert_eq!(parse_truth_word(&format!("{parity:#066b}"), 6), Ok(parity));
+    assert_eq!(parse_truth_word(&format!("{parity:064b}"), 6), Ok(parity));
+    // Seven inputs do not fit a word; a table with bits above its rows, or
+    // binary digits of the wrong count, is refused.
+    assert!(parse_truth_word("0x1", 7)
+        .unwrap_err()
+        .contains("at most 6"));
+    let above = parse_truth_word("0x1E8", 3).unwrap_err();
+    assert!(above.contains("bits above row 7"), "{above}");
+    assert!(parse_truth_word("1110100", 3).is_err());
+    assert_eq!(parse_truth_word("11101000", 3), Ok(0xE8));
+    assert_eq!(parse_truth_word("0b1110_1000", 3), Ok(0xE8));
+    assert!(parse_truth_word("0x", 3).unwrap_err().contains("no digits"));
+}
