@@ -35,6 +35,9 @@ const AREA_TIE: f32 = 1e-6;
 pub struct MatchTable {
     pub(super) index: FxHashMap<u64, u32>,
     pub(super) slots: Vec<Vec<u32>>,
+    /// Per slot, how many leading candidates are kept for area (see
+    /// [`MatchTable::area_candidates`]); not stored in the cache.
+    pub(super) area_kept: Vec<u8>,
     /// Every implementation the table refers to.
     pub implementations: Vec<Implementation>,
     /// Load assumed at a cell output when ranking by delay (mean input load).
@@ -72,6 +75,7 @@ impl MatchTable {
         let mut table = MatchTable {
             index: FxHashMap::default(),
             slots: Vec::new(),
+            area_kept: Vec::new(),
             implementations: Vec::new(),
             typical_load,
             inverter: None,
@@ -180,65 +184,48 @@ impl MatchTable {
         }
         let slot = self.slot_or_insert(f);
         let id = self.implementations.len() as u32;
-        let load = self.typical_load;
-        let inverter_area = self.inverter_area;
-        let mut contenders: Vec<(u32, KeepCosts, u16)> = self.slots[slot as usize]
-            .iter()
-            .map(|&i| {
-                let kept = &self.implementations[i as usize];
+        let mut ids: Vec<u32> = self.slots[slot as usize].clone();
+        ids.push(id);
+        let (list, area_kept) = {
+            let costs = |i: u32| {
+                let imp = if i == id {
+                    &imp
+                } else {
+                    &self.implementations[i as usize]
+                };
                 (
-                    i,
-                    KeepCosts::of(kept, inverter_area, load),
-                    kept.leaf_phases(),
+                    KeepCosts::of(imp, self.inverter_area, self.typical_load),
+                    imp.leaf_phases(),
                 )
-            })
-            .collect();
-        contenders.push((
-            id,
-            KeepCosts::of(&imp, inverter_area, load),
-            imp.leaf_phases(),
-        ));
-        // Per criterion, the first contender that no later one beats.
-        let winners = KEEP_CRITERIA.map(|better| {
-            let mut best = contenders[0];
-            for c in &contenders[1..] {
-                if better(&c.1, &best.1) {
-                    best = *c;
-                }
-            }
-            best.0
-        });
-        let mut list: Vec<u32> = Vec::with_capacity(4);
-        for w in winners {
-            if !list.contains(&w) {
-                list.push(w);
-            }
-        }
-        // One least-area implementation per set of leaf phases, the first
-        // listed, after those kept by the criteria.
-        let least = contenders
-            .iter()
-            .map(|c| c.1.area)
-            .fold(f32::INFINITY, f32::min);
-        let mut phase_sets: Vec<u16> = contenders
-            .iter()
-            .filter(|c| list.contains(&c.0) && c.1.area <= least + AREA_TIE)
-            .map(|c| c.2)
-            .collect();
-        for c in &contenders {
-            if list.len() >= MAX_CANDIDATES {
-                break;
-            }
-            if c.1.area <= least + AREA_TIE && !phase_sets.contains(&c.2) {
-                phase_sets.push(c.2);
-                list.push(c.0);
-            }
-        }
+            };
+            order_candidates(&ids, costs)
+        };
         if !list.contains(&id) {
             return;
         }
         self.implementations.push(imp);
         self.slots[slot as usize] = list;
+        self.area_kept[slot as usize] = area_kept;
+    }
+
+    /// Recounts, for every slot, how many leading candidates the least-area
+    /// cover reads (after a table is read back from the cache, where the
+    /// lists are stored in order but the counts are not).
+    pub(super) fn recount_area_kept(&mut self) {
+        self.area_kept = self
+            .slots
+            .iter()
+            .map(|list| {
+                let costs = |i: u32| {
+                    let imp = &self.implementations[i as usize];
+                    (
+                        KeepCosts::of(imp, self.inverter_area, self.typical_load),
+                        imp.leaf_phases(),
+                    )
+                };
+                order_candidates(list, costs).1
+            })
+            .collect();
     }
 
     fn slot_or_insert(&mut self, f: u64) -> u32 {
@@ -248,6 +235,8 @@ impl MatchTable {
         let s = self.slots.len() as u32;
         self.slots.push(Vec::new());
         self.slots.push(Vec::new());
+        self.area_kept.push(0);
+        self.area_kept.push(0);
         self.index.insert(f, s);
         self.index.insert(!f, s + 1);
         s
@@ -264,6 +253,17 @@ impl MatchTable {
     #[inline]
     pub fn candidates(&self, slot: u32) -> &[u32] {
         &self.slots[slot as usize]
+    }
+
+    /// The leading candidates of `slot` that the least-area cover reads:
+    /// every candidate except one kept only for being the fastest, so that
+    /// the least-area cover sees the same candidates, in the same order,
+    /// for any two libraries with the same cells and areas (positions are
+    /// those of [`MatchTable::candidates`]).
+    #[inline]
+    pub fn area_candidates(&self, slot: u32) -> &[u32] {
+        let list = &self.slots[slot as usize];
+        &list[..self.area_kept[slot as usize] as usize]
     }
 
     /// The implementation with id `id`.
@@ -320,4 +320,64 @@ impl MatchTable {
             }],
         )
     }
+}
+
+/// Which of the implementations `ids` (in order of addition, so ascending)
+/// a slot keeps, in the order it keeps them, and how many of them lead the
+/// list as the area-kept ones.
+///
+/// Kept for area, in ascending id: the cheapest by area, the cheapest with
+/// its complemented leaves paid for, and for every set of leaf phases with
+/// which the least area can be had the first implementation added with it
+/// (at most [`MAX_CANDIDATES`] − 1 in all). Ties go to the implementation
+/// added first, never to the faster, so this part of the list is the same
+/// for any two libraries with the same cells and areas. Then, last and only
+/// when it is not already in the list, the fastest (ties by the order of
+/// addition).
+fn order_candidates(ids: &[u32], costs: impl Fn(u32) -> (KeepCosts, u16)) -> (Vec<u32>, u8) {
+    if ids.is_empty() {
+        return (Vec::new(), 0);
+    }
+    let mut sorted: Vec<(u32, KeepCosts, u16)> = ids
+        .iter()
+        .map(|&i| {
+            let (c, p) = costs(i);
+            (i, c, p)
+        })
+        .collect();
+    sorted.sort_by_key(|c| c.0);
+    // Per criterion, the first contender that no later one beats.
+    let winner = |better: fn(&KeepCosts, &KeepCosts) -> bool| {
+        let mut best = sorted[0];
+        for c in &sorted[1..] {
+            if better(&c.1, &best.1) {
+                best = *c;
+            }
+        }
+        best.0
+    };
+    let [cheapest, standalone, fastest] = KEEP_CRITERIA.map(winner);
+    let least = sorted
+        .iter()
+        .map(|c| c.1.area)
+        .fold(f32::INFINITY, f32::min);
+    let mut area: Vec<u32> = vec![cheapest];
+    if standalone != cheapest {
+        area.push(standalone);
+    }
+    let mut phase_sets: Vec<u16> = Vec::new();
+    for c in &sorted {
+        if c.1.area <= least + AREA_TIE && !phase_sets.contains(&c.2) {
+            phase_sets.push(c.2);
+            if !area.contains(&c.0) && area.len() < MAX_CANDIDATES - 1 {
+                area.push(c.0);
+            }
+        }
+    }
+    area.sort_unstable();
+    let count = area.len() as u8;
+    if !area.contains(&fastest) {
+        area.push(fastest);
+    }
+    (area, count)
 }

@@ -14,8 +14,9 @@
 //! by [`Implementation::new`] with the stored function compared, so a
 //! stale, truncated or edited file is ignored and the table rebuilt.
 //!
-//! Format `ribbonmap-match-table/2` (little-endian): the 8-byte tag
-//! `RMMATCH2` (version 2: more implementations per function), the library hash (u64), the typical load (f32 bits), the
+//! Format `ribbonmap-match-table/3` (little-endian): the 8-byte tag
+//! `RMMATCH3` (version 3: each function's list holds the implementations
+//! kept for area first, the fastest last), the library hash (u64), the typical load (f32 bits), the
 //! inverter and buffer ids (u32, `u32::MAX` for none), the inverter area
 //! (f64 bits), the index (count, then key u64 and slot u32 pairs), the
 //! slots (count, then per slot a count and implementation ids u32), the
@@ -30,7 +31,7 @@ use crate::library::Library;
 use std::path::PathBuf;
 use std::sync::atomic::{AtomicBool, Ordering};
 
-const TAG: &[u8; 8] = b"RMMATCH2";
+const TAG: &[u8; 8] = b"RMMATCH3";
 /// Most entries of any list a cache file may declare (bounds allocation).
 const MAX_ENTRIES: usize = 1 << 24;
 
@@ -213,15 +214,21 @@ pub fn decode(bytes: &[u8], lib: &Library) -> Option<MatchTable> {
         && index.values().all(|&s| (s as usize) < slots.len())
         && inverter.is_none_or(|v| v < count)
         && buffer.is_none_or(|v| v < count);
-    ids_ok.then_some(MatchTable {
+    if !ids_ok {
+        return None;
+    }
+    let mut table = MatchTable {
         index,
         slots,
+        area_kept: Vec::new(),
         implementations,
         typical_load,
         inverter,
         buffer,
         inverter_area,
-    })
+    };
+    table.recount_area_kept();
+    Some(table)
 }
 
 /// 64-bit FNV-1a (Fowler, Noll and Vo; the published offset and prime).

@@ -51,7 +51,6 @@ impl Cover<'_> {
         let mut stack = Vec::new();
         let mut touched = Vec::new();
         let mut options: Vec<(u32, u32, f32, f32)> = Vec::new();
-        let table = self.table;
         for id in self.net.node_ids() {
             let node = id.index();
             if !self.net.is_gate(id) {
@@ -90,7 +89,7 @@ impl Cover<'_> {
                         continue;
                     }
                     let leaf_costs = self.leaf_costs(cut);
-                    for (ci, &id) in table.candidates(slot ^ phase as u32).iter().enumerate() {
+                    for (ci, &id) in self.candidates(slot ^ phase as u32).iter().enumerate() {
                         let opt = ((cut as u32) << CANDIDATE_BITS) | ci as u32;
                         let d = self.digest(id);
                         let (arrival, flow) = self.evaluate_with(node, &leaf_costs, d);

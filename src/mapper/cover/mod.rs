@@ -221,6 +221,19 @@ impl<'a> Cover<'a> {
         self.delay_blind = true;
     }
 
+    /// The candidates of `slot` this cover reads: for a delay-blind cover
+    /// only those kept for area (see [`MatchTable::area_candidates`]), so
+    /// that an implementation kept only for being the fastest cannot decide
+    /// a tie in the least-area cover.
+    #[inline]
+    pub(super) fn candidates(&self, slot: u32) -> &'a [u32] {
+        if self.delay_blind {
+            self.table.area_candidates(slot)
+        } else {
+            self.table.candidates(slot)
+        }
+    }
+
     fn inverter_delay(&self, node: usize) -> f32 {
         if self.delay_blind {
             return 1.0;

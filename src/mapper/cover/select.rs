@@ -136,7 +136,6 @@ impl Cover<'_> {
     pub(super) fn select(&mut self, node: usize, rank: Rank) -> Result<(), MapError> {
         let mut best = [Pick::EMPTY; 2];
         let req = [self.required[2 * node], self.required[2 * node + 1]];
-        let table = self.table;
         for cut in self.cuts.cuts(node) {
             let slot = self.cuts.slot(cut);
             if slot == NO_SLOT {
@@ -144,7 +143,7 @@ impl Cover<'_> {
             }
             let leaf_costs = self.leaf_costs(cut);
             for (phase, best_phase) in best.iter_mut().enumerate() {
-                for (ci, &imp) in table.candidates(slot ^ phase as u32).iter().enumerate() {
+                for (ci, &imp) in self.candidates(slot ^ phase as u32).iter().enumerate() {
                     let d = self.digest(imp);
                     let (arrival, flow) = self.evaluate_with(node, &leaf_costs, d);
                     let pick = Pick {
