@@ -583,6 +583,102 @@ fn ribbonmap_in(dir: &Path, args: &[&str]) -> (i32, String) {
     )
 }
 
+/// The command line on the weak kit's 16-bit ripple adder: `levels` exits 1
+/// and reports the logic failures, and `map --min-margin 20` exits 0 with
+/// every margin held by restoring stages and xor3w left out. Both equal
+/// the library functions' figures with the same options (whose results
+/// the test above checks against ngspice).
+#[test]
+fn levels_and_map_min_margin_command_line_on_the_weak_adder() {
+    let s = setup("demo-weak.json");
+    let dir = s.dir.clone();
+    let kit = Path::new(env!("CARGO_MANIFEST_DIR")).join("libraries/devices/demo/demo-weak.json");
+    let (code, _) = ribbonmap_in(
+        &dir,
+        &["characterize", kit.to_str().unwrap(), "-o", "weak.json"],
+    );
+    assert_eq!(code, 0);
+    std::fs::write(dir.join("add16.blif"), ripple_adder_blif(16)).unwrap();
+    let (code, out) = ribbonmap_in(
+        &dir,
+        &[
+            "levels",
+            "add16.blif",
+            "--lib",
+            "weak.json",
+            "--format",
+            "json",
+        ],
+    );
+    assert_eq!(code, 1, "{out}");
+    let levels: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let net = blif(&ripple_adder_blif(16), "add16.blif");
+    let plain = map(&net, &s.lib, &MapOptions::default()).unwrap();
+    let report = analyze_levels(&plain, &s.lib, &s.levels, &LevelOptions::default()).unwrap();
+    println!(
+        "ribbonmap levels add16: exit {code}, {} cells, worst {} mV on {}, {} logic failures",
+        levels["cells"],
+        levels["nets"][0]["worst_margin_v"].as_f64().unwrap() * 1e3,
+        levels["nets"][0]["net"],
+        levels["logic_failures"]
+    );
+    assert!(report.logic_failures > 0);
+    assert_eq!(levels["logic_failures"], report.logic_failures);
+    assert_eq!(levels["holds"], false);
+    assert_eq!(levels["nets"][0]["net"], report.nets[0].net.as_str());
+    assert_eq!(
+        levels["nets"][0]["worst_margin_v"],
+        report.worst_margin_v().unwrap()
+    );
+
+    let (code, out) = ribbonmap_in(
+        &dir,
+        &[
+            "map",
+            "add16.blif",
+            "--lib",
+            "weak.json",
+            "--min-margin",
+            "20",
+            "--format",
+            "json",
+        ],
+    );
+    assert_eq!(code, 0, "{out}");
+    let mapped: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let margin = &mapped["margin"];
+    let m = map_with_margin(
+        &net,
+        &s.lib,
+        &s.levels,
+        &s.data,
+        &MapOptions::default(),
+        0.020,
+        &LevelOptions::default(),
+    )
+    .unwrap();
+    println!(
+        "ribbonmap map add16 --min-margin 20: {} cells, area {}, {} restoring (+{}), delay {} -> {} ps, static {} -> {} nW, worst {} -> {} mV, left out {}",
+        mapped["cell_count"],
+        mapped["area"],
+        margin["restoring_cells"],
+        margin["restoring_area"],
+        margin["delay_before"],
+        margin["delay_after"],
+        margin["static_before_nw"],
+        margin["static_after_nw"],
+        margin["worst_margin_before_mv"],
+        margin["worst_margin_mv"],
+        margin["left_out"]
+    );
+    assert_eq!(margin["holds"], true);
+    assert!(margin["worst_margin_mv"].as_f64().unwrap() >= 20.0);
+    assert_eq!(margin["restoring_cells"], m.restoring_cells);
+    assert_eq!(margin["left_out"][0]["cell"], "xor3w");
+    assert_eq!(mapped["cell_count"], m.outcome.netlist.instances.len());
+    assert!(m.restoring_cells > 0);
+}
+
 /// A study plan's `min_margin` and `compare --min-margin` map exactly as
 /// `map --min-margin` (the outside check of the result is the level
 /// analysis and ngspice of the tests above; here the three commands must
