@@ -17,8 +17,23 @@
 //! logarithm of the conductance is the multilinear blend of the corner
 //! logarithms with weights prod_k (x_k or 1 − x_k). RATIO is 150 for one-
 //! and two-input cells (on/off about 100 after f) and 45 for three-input
-//! cells (about 30); the weak cell `xor3w` of `demo-weak.json` has RATIO 3
-//! and a wider step, so its voltage gain stays below 1.
+//! cells (about 30).
+//!
+//! The two weak cells of `demo-weak.json` come from the same model with a
+//! peak of 0.15 G0, a smaller RATIO and a wider step, so that their voltage
+//! gain never reaches 1 (neither restores levels) and they are cheaper in
+//! area than the strong cells of the same function, which is what makes a
+//! Boolean mapper pick them. They are weak in two different ways:
+//!
+//! - `xor3w` (RATIO 3, W = 35 mV; on/off about 2, largest gain about 0.76)
+//!   has poor levels even from clean inputs (VOH about 0.138 V), too poor
+//!   for a buffer to read with a 20 mV margin: a margin-aware mapping must
+//!   do without it;
+//! - `maj3w` (RATIO 5, W = 60 mV; on/off about 4, largest gain about 0.88)
+//!   has levels a buffer reads with over 30 mV to spare (VOH about 0.161 V),
+//!   but each majority stage on a carry chain passes a degraded carry on
+//!   with gain below 1, so a ripple adder's carry drifts towards the middle
+//!   and sum bits read wrong: restoring stages on the chain save it.
 //!
 //! Run: `cargo run --example device_demo_kit` (writes into the repository).
 
@@ -69,7 +84,8 @@ struct CellSpec {
     inputs: usize,
     area: f64,
     gate_af: f64,
-    weak: bool,
+    /// `Some` for a deliberately weak cell: its (peak G0, RATIO, W).
+    weak: Option<(f64, f64, f64)>,
 }
 
 const fn spec(
@@ -87,7 +103,7 @@ const fn spec(
         inputs,
         area,
         gate_af,
-        weak: false,
+        weak: None,
     }
 }
 
@@ -110,15 +126,28 @@ const CELLS: &[CellSpec] = &[
     spec("xnor3", "!(a ^ b ^ c)", 0x69, 3, 120.0, 36.0),
 ];
 
-const WEAK: CellSpec = CellSpec {
-    name: "xor3w",
-    function: "a ^ b ^ c",
-    truth: 0x96,
-    inputs: 3,
-    area: 80.0,
-    gate_af: 30.0,
-    weak: true,
-};
+const WEAK: &[CellSpec] = &[
+    // Weak in its levels: no buffer reads it with a 20 mV margin.
+    CellSpec {
+        name: "xor3w",
+        function: "a ^ b ^ c",
+        truth: 0x96,
+        inputs: 3,
+        area: 80.0,
+        gate_af: 30.0,
+        weak: Some((0.15, 3.0, 0.035)),
+    },
+    // Weak in its gain only: its levels can be restored.
+    CellSpec {
+        name: "maj3w",
+        function: "maj(a, b, c)",
+        truth: 0xE8,
+        inputs: 3,
+        area: 76.0,
+        gate_af: 30.0,
+        weak: Some((0.15, 5.0, 0.06)),
+    },
+];
 
 const NAMES: [&str; 3] = ["a", "b", "c"];
 
@@ -126,9 +155,9 @@ const NAMES: [&str; 3] = ["a", "b", "c"];
 fn ribbon(cell: &CellSpec, up: bool) -> Ribbon {
     let n = cell.inputs;
     let (peak_g0, ratio, width) = match (cell.weak, n) {
-        (true, _) => (0.15, 3.0, 0.035),
-        (false, 1) => (0.3, 150.0, 0.018),
-        (false, 2) => (0.25, 150.0, 0.018),
+        (Some(model), _) => model,
+        (None, 1) => (0.3, 150.0, 0.018),
+        (None, 2) => (0.25, 150.0, 0.018),
         _ => (0.2, 45.0, 0.018),
     };
     let on = peak_g0 * G0;
@@ -302,7 +331,7 @@ fn main() {
     let tables = root.join("tables");
     std::fs::create_dir_all(&tables).unwrap();
     let mut written = Vec::new();
-    for cell in CELLS.iter().chain(std::iter::once(&WEAK)) {
+    for cell in CELLS.iter().chain(WEAK) {
         let up = write_table(&tables, cell, true);
         let down = write_table(&tables, cell, false);
         written.push((cell, up, down));
@@ -322,7 +351,7 @@ fn main() {
         root.join("demo-weak.json"),
         kit_text(
             "ribbon3-demo-weak",
-            "INVENTED demo kit: the cells of demo.json plus xor3w, a deliberately weak three-input XOR (on/off about 2, voltage gain below 1) that does not restore levels.",
+            "INVENTED demo kit: the cells of demo.json plus two deliberately weak cells whose voltage gain stays below 1, so they do not restore levels: xor3w, a three-input XOR (on/off about 2, high output about 0.138 V), and maj3w, a majority (on/off about 4, high output about 0.161 V) that degrades ripple-adder carry chains.",
             &all,
         ),
     )
