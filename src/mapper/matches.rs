@@ -15,6 +15,7 @@ use super::small_truth::{depends_on, var};
 use super::supergate;
 use crate::library::Library;
 use rustc_hash::FxHashMap;
+use std::sync::{Arc, OnceLock};
 
 /// Marker for "no slot".
 pub const NO_SLOT: u32 = u32::MAX;
@@ -31,12 +32,20 @@ pub const CANDIDATE_BITS: u32 = 5;
 const AREA_TIE: f32 = 1e-6;
 
 /// Implementations per cut function, both phases side by side.
+///
+/// A table read from the disk cache keeps its implementations as stored
+/// gate lists and builds each [`Implementation`] the first time it is asked
+/// for (see [`StoredGates`]), so a process pays only for the functions its
+/// cuts have.
 #[derive(Clone, Debug)]
 pub struct MatchTable {
     pub(super) index: FxHashMap<u64, u32>,
     pub(super) slots: Vec<Vec<u32>>,
-    /// Every implementation the table refers to.
-    pub implementations: Vec<Implementation>,
+    /// Every implementation the table refers to (built on first use when
+    /// the table came from the cache).
+    pub(super) implementations: Vec<OnceLock<Implementation>>,
+    /// Where the implementations not built yet are read from.
+    pub(super) stored: Option<Arc<StoredGates>>,
     /// Load assumed at a cell output when ranking by delay (mean input load).
     pub typical_load: f32,
     pub(super) inverter: Option<u32>,
@@ -73,6 +82,7 @@ impl MatchTable {
             index: FxHashMap::default(),
             slots: Vec::new(),
             implementations: Vec::new(),
+            stored: None,
             typical_load,
             inverter: None,
             buffer: None,
@@ -142,7 +152,7 @@ impl MatchTable {
         }
         if best.is_none() && !complement {
             let inv = self.inverter?;
-            let g = self.implementations[inv as usize].gates[0].clone();
+            let g = self.implementation(inv).gates[0].clone();
             let mut second = g.clone();
             second.inputs = second
                 .inputs
@@ -155,7 +165,7 @@ impl MatchTable {
             best = Implementation::new(lib, vec![g, second]);
         }
         let imp = best?;
-        self.implementations.push(imp);
+        self.implementations.push(OnceLock::from(imp));
         Some((self.implementations.len() - 1) as u32)
     }
 
@@ -185,7 +195,7 @@ impl MatchTable {
         let mut contenders: Vec<(u32, KeepCosts, u16)> = self.slots[slot as usize]
             .iter()
             .map(|&i| {
-                let kept = &self.implementations[i as usize];
+                let kept = self.implementation(i);
                 (
                     i,
                     KeepCosts::of(kept, inverter_area, load),
@@ -237,7 +247,7 @@ impl MatchTable {
         if !list.contains(&id) {
             return;
         }
-        self.implementations.push(imp);
+        self.implementations.push(OnceLock::from(imp));
         self.slots[slot as usize] = list;
     }
 
@@ -269,7 +279,18 @@ impl MatchTable {
     /// The implementation with id `id`.
     #[inline]
     pub fn implementation(&self, id: u32) -> &Implementation {
-        &self.implementations[id as usize]
+        self.implementations[id as usize].get_or_init(|| {
+            let stored = self
+                .stored
+                .as_ref()
+                .expect("only a table read from the cache has unbuilt implementations");
+            stored.build(id)
+        })
+    }
+
+    /// Number of implementations (built or not).
+    pub fn num_implementations(&self) -> usize {
+        self.implementations.len()
     }
 
     /// The cheapest implementation by area of `f`, if any.
@@ -319,5 +340,37 @@ impl MatchTable {
                     .collect(),
             }],
         )
+    }
+}
+
+/// The implementations of a table read from the cache, as their gate lists
+/// in the file's encoding (see `table_cache`), each already checked on load
+/// to be well formed and to compute its stored function; so building one
+/// cannot fail.
+pub struct StoredGates {
+    /// The library the gates are cells of.
+    pub(super) lib: Library,
+    /// The file's implementation records.
+    pub(super) bytes: Vec<u8>,
+    /// Offset in `bytes` of the gate count of implementation `id`.
+    pub(super) offsets: Vec<u32>,
+}
+
+impl std::fmt::Debug for StoredGates {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("StoredGates")
+            .field("library", &self.lib.name)
+            .field("implementations", &self.offsets.len())
+            .finish()
+    }
+}
+
+impl StoredGates {
+    /// The implementation `id` built from its stored gates.
+    fn build(&self, id: u32) -> Implementation {
+        let mut at = self.offsets[id as usize] as usize;
+        let gates = super::table_cache::read_gates(&self.bytes, &mut at)
+            .expect("stored gates were checked on load");
+        Implementation::new(&self.lib, gates).expect("stored gates were checked on load")
     }
 }
