@@ -277,6 +277,8 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
                         let base_area = cell.area as f32
                             + g.costs[c1 as usize].1.area
                             + g.costs[c2 as usize].1.area;
+                        let d1 = g.impls[c1 as usize].delay(cell.input_load as f32);
+                        let d2 = g.impls[c2 as usize].delay(cell.input_load as f32);
                         for_each_tuple(rest, atoms.len(), |t| {
                             let mut k = 0;
                             for (pin, slot) in ins.iter_mut().enumerate().take(a) {
@@ -293,8 +295,6 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
                             if is_atomic(f) {
                                 return;
                             }
-                            let d1 = g.impls[c1 as usize].delay(cell.input_load as f32);
-                            let d2 = g.impls[c2 as usize].delay(cell.input_load as f32);
                             let delay = d1.max(d2)
                                 + (cell.delay.intrinsic + cell.delay.per_load * typical_load as f64)
                                     as f32;
@@ -339,14 +339,10 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
     compose_one_child(&mut g, &narrow, &level2, &atoms);
 
     // Collect the survivors: best by area, by delay and by area with
-    // complemented leaves paid for, per function.
+    // complemented leaves paid for, per function (repeats go below).
     let mut keep: Vec<u32> = Vec::new();
     for f in 0..(1usize << 16) {
-        for id in g.best.iter().map(|best| best[f]) {
-            if id != NONE && !keep.contains(&id) {
-                keep.push(id);
-            }
-        }
+        keep.extend(g.best.iter().map(|best| best[f]).filter(|&id| id != NONE));
         if let Some(ties) = g.ties.get(&(f as u16)) {
             keep.extend(ties.iter().map(|&(_, id)| id));
         }
