@@ -124,7 +124,8 @@ fn damaged_cache_files_are_ignored_and_rewritten() {
     files.sort();
     assert_eq!(files.len(), 3, "{files:?}");
     let good: Vec<Vec<u8>> = files.iter().map(|p| std::fs::read(p).unwrap()).collect();
-    let damages: [(&str, fn(&[u8]) -> Vec<u8>); 3] = [
+    type Damage = fn(&[u8]) -> Vec<u8>;
+    let damages: [(&str, Damage); 3] = [
         ("truncated", |b| b[..b.len() / 3].to_vec()),
         ("empty", |_| Vec::new()),
         ("one byte changed", |b| {
