@@ -2,7 +2,7 @@
 //! in `RIBBONMAP_CACHE_DIR` when set (else the user's cache folder), the first `map` writes the table, the
 //! second reads it, and both print the same mapping. The expected netlist
 //! is the first run's own output; the outside check is the proof each run
-//! reports (`verified: proven`).
+//! reports (`verified: proven`). Damaged files are ignored and rewritten.
 
 use assert_cmd::Command;
 
@@ -100,4 +100,52 @@ fn the_user_cache_folder_is_the_default_and_can_be_turned_off() {
     );
     assert_eq!(tables_in(&off.path().join("ribbonmap")), 0);
     assert_eq!(tables_in(&off.path().join(".cache").join("ribbonmap")), 0);
+}
+
+/// A damaged cache file is ignored, never trusted: with every table file
+/// truncated, emptied or with one byte changed, `map` still proves the same
+/// mapping (outside check: the proof, `verified: proven`) and rewrites each
+/// file whole (the same bytes as the first run wrote, since the build is
+/// deterministic).
+#[test]
+fn damaged_cache_files_are_ignored_and_rewritten() {
+    let dir = tempfile::tempdir().unwrap();
+    let first = map_json(dir.path());
+    let mut files: Vec<_> = std::fs::read_dir(dir.path())
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| {
+            p.file_name()
+                .unwrap()
+                .to_string_lossy()
+                .starts_with("match-table-")
+        })
+        .collect();
+    files.sort();
+    assert_eq!(files.len(), 3, "{files:?}");
+    let good: Vec<Vec<u8>> = files.iter().map(|p| std::fs::read(p).unwrap()).collect();
+    type Damage = fn(&[u8]) -> Vec<u8>;
+    let damages: [(&str, Damage); 3] = [
+        ("truncated", |b| b[..b.len() / 3].to_vec()),
+        ("empty", |_| Vec::new()),
+        ("one byte changed", |b| {
+            let mut b = b.to_vec();
+            let at = b.len() * 2 / 3;
+            b[at] ^= 0x40;
+            b
+        }),
+    ];
+    for (what, damage) in damages {
+        for (p, g) in files.iter().zip(&good) {
+            std::fs::write(p, damage(g)).unwrap();
+        }
+        let again = map_json(dir.path());
+        for field in ["cells", "cell_count", "area", "delay", "depth"] {
+            assert_eq!(first[field], again[field], "{what}: {field}");
+        }
+        assert_eq!(again["verified"], "proven", "{what}");
+        for (p, g) in files.iter().zip(&good) {
+            assert!(std::fs::read(p).unwrap() == *g, "{what}: {p:?} rewritten");
+        }
+    }
 }

@@ -73,80 +73,32 @@ impl Implementation {
     /// Returns `None` when a source refers to a later gate or a pin count
     /// does not match its cell.
     pub fn new(lib: &Library, gates: Vec<ImplGate>) -> Option<Implementation> {
-        if gates.is_empty() {
-            return None;
-        }
-        let mut tables: Vec<u64> = Vec::with_capacity(gates.len());
+        // Per gate: its table, the load its output drives inside the
+        // implementation, and the delay from each leaf phase to its output
+        // (excluding the root's load term). On the stack for the usual few
+        // gates: the supergate generator builds millions of these.
+        const INLINE: usize = 8;
+        type Scratch = (u64, f64, [Option<f32>; 12]);
+        let blank: Scratch = (0, 0.0, [None; 12]);
+        let mut inline = [blank; INLINE];
+        let mut heap = Vec::new();
+        let scratch: &mut [Scratch] = if gates.len() <= INLINE {
+            &mut inline[..gates.len()]
+        } else {
+            heap.resize(gates.len(), blank);
+            &mut heap
+        };
+        Self::evaluate(lib, &gates, scratch)?;
+        let (function, _, root_delays) = *scratch.last()?;
         let mut area = 0.0;
         let mut devices = 0;
-        // Load each gate's output drives inside the implementation.
-        let mut inner_load = vec![0.0f64; gates.len()];
-        for (g, gate) in gates.iter().enumerate() {
-            let cell = lib.cells.get(gate.cell as usize)?;
-            if cell.arity() != gate.inputs.len() {
-                return None;
-            }
-            for s in &gate.inputs {
-                match *s {
-                    Source::Gate(j) if (j as usize) < g => {
-                        inner_load[j as usize] += cell.input_load
-                    }
-                    Source::Gate(_) => return None,
-                    Source::Leaf { var, .. } if var >= 6 => return None,
-                    _ => {}
-                }
-            }
-        }
-        // Delay from each source to each gate output (excluding root load).
-        let mut leaf_delay: Vec<Vec<Option<f32>>> = Vec::with_capacity(gates.len());
-        for (g, gate) in gates.iter().enumerate() {
+        for gate in &gates {
             let cell = &lib.cells[gate.cell as usize];
             area += cell.area;
             devices += cell.devices;
-            let own = if g + 1 == gates.len() {
-                cell.delay.intrinsic
-            } else {
-                cell.delay.intrinsic + cell.delay.per_load * inner_load[g]
-            } as f32;
-            let mut ins = Vec::with_capacity(gate.inputs.len());
-            let mut arrival = vec![None::<f32>; 12];
-            for s in &gate.inputs {
-                let t = match *s {
-                    Source::Leaf { var, complemented } => {
-                        let slot = var as usize * 2 + complemented as usize;
-                        arrival[slot] = Some(arrival[slot].unwrap_or(0.0).max(own));
-                        let v = VAR_MASKS[var as usize];
-                        if complemented {
-                            !v
-                        } else {
-                            v
-                        }
-                    }
-                    Source::Gate(j) => {
-                        for (slot, d) in leaf_delay[j as usize].iter().enumerate() {
-                            if let Some(d) = d {
-                                let t = d + own;
-                                arrival[slot] = Some(arrival[slot].map_or(t, |a| a.max(t)));
-                            }
-                        }
-                        tables[j as usize]
-                    }
-                    Source::Constant(c) => {
-                        if c {
-                            u64::MAX
-                        } else {
-                            0
-                        }
-                    }
-                };
-                ins.push(t);
-            }
-            tables.push(evaluate_cell(cell.truth, &ins));
-            leaf_delay.push(arrival);
         }
         let root = &lib.cells[gates.last()?.cell as usize];
-        let leaf_uses = leaf_delay
-            .last()?
+        let leaf_uses = root_delays
             .iter()
             .enumerate()
             .filter_map(|(slot, d)| {
@@ -158,13 +110,83 @@ impl Implementation {
             })
             .collect();
         Some(Implementation {
-            function: *tables.last()?,
+            function,
             gates,
             area,
             devices,
             leaf_uses,
             root_per_load: root.delay.per_load as f32,
         })
+    }
+
+    /// Fills `scratch` (one entry per gate, zeroed) with each gate's table,
+    /// inner load and leaf-phase delays; `None` when the gates are not a
+    /// well-formed implementation over `lib` (see [`Implementation::new`]).
+    fn evaluate(
+        lib: &Library,
+        gates: &[ImplGate],
+        scratch: &mut [(u64, f64, [Option<f32>; 12])],
+    ) -> Option<()> {
+        if gates.is_empty() {
+            return None;
+        }
+        for (g, gate) in gates.iter().enumerate() {
+            let cell = lib.cells.get(gate.cell as usize)?;
+            if cell.arity() != gate.inputs.len() || gate.inputs.len() > 6 {
+                return None;
+            }
+            for s in &gate.inputs {
+                match *s {
+                    Source::Gate(j) if (j as usize) < g => scratch[j as usize].1 += cell.input_load,
+                    Source::Gate(_) => return None,
+                    Source::Leaf { var, .. } if var >= 6 => return None,
+                    _ => {}
+                }
+            }
+        }
+        for (g, gate) in gates.iter().enumerate() {
+            let cell = &lib.cells[gate.cell as usize];
+            let own = if g + 1 == gates.len() {
+                cell.delay.intrinsic
+            } else {
+                cell.delay.intrinsic + cell.delay.per_load * scratch[g].1
+            } as f32;
+            let mut ins = [0u64; 6];
+            let mut arrival = [None::<f32>; 12];
+            for (k, s) in gate.inputs.iter().enumerate() {
+                ins[k] = match *s {
+                    Source::Leaf { var, complemented } => {
+                        let slot = var as usize * 2 + complemented as usize;
+                        arrival[slot] = Some(arrival[slot].unwrap_or(0.0).max(own));
+                        let v = VAR_MASKS[var as usize];
+                        if complemented {
+                            !v
+                        } else {
+                            v
+                        }
+                    }
+                    Source::Gate(j) => {
+                        for (slot, d) in scratch[j as usize].2.iter().enumerate() {
+                            if let Some(d) = d {
+                                let t = d + own;
+                                arrival[slot] = Some(arrival[slot].map_or(t, |a| a.max(t)));
+                            }
+                        }
+                        scratch[j as usize].0
+                    }
+                    Source::Constant(c) => {
+                        if c {
+                            u64::MAX
+                        } else {
+                            0
+                        }
+                    }
+                };
+            }
+            scratch[g].0 = evaluate_cell(cell.truth, &ins[..gate.inputs.len()]);
+            scratch[g].2 = arrival;
+        }
+        Some(())
     }
 
     /// Area including one inverter (of area `inverter_area`) per leaf used

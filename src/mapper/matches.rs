@@ -15,6 +15,7 @@ use super::small_truth::{depends_on, var};
 use super::supergate;
 use crate::library::Library;
 use rustc_hash::FxHashMap;
+use std::sync::{Arc, OnceLock};
 
 /// Marker for "no slot".
 pub const NO_SLOT: u32 = u32::MAX;
@@ -31,15 +32,23 @@ pub const CANDIDATE_BITS: u32 = 5;
 const AREA_TIE: f32 = 1e-6;
 
 /// Implementations per cut function, both phases side by side.
+///
+/// A table read from the disk cache keeps its implementations as stored
+/// gate lists and builds each [`Implementation`] the first time it is asked
+/// for (see [`StoredGates`]), so a process pays only for the functions its
+/// cuts have.
 #[derive(Clone, Debug)]
 pub struct MatchTable {
     pub(super) index: FxHashMap<u64, u32>,
     pub(super) slots: Vec<Vec<u32>>,
     /// Per slot, how many leading candidates are kept for area (see
-    /// [`MatchTable::area_candidates`]); not stored in the cache.
+    /// [`MatchTable::area_candidates`]).
     pub(super) area_kept: Vec<u8>,
-    /// Every implementation the table refers to.
-    pub implementations: Vec<Implementation>,
+    /// Every implementation the table refers to (built on first use when
+    /// the table came from the cache).
+    pub(super) implementations: Vec<OnceLock<Implementation>>,
+    /// Where the implementations not built yet are read from.
+    pub(super) stored: Option<Arc<StoredGates>>,
     /// Load assumed at a cell output when ranking by delay (mean input load).
     pub typical_load: f32,
     pub(super) inverter: Option<u32>,
@@ -77,6 +86,7 @@ impl MatchTable {
             slots: Vec::new(),
             area_kept: Vec::new(),
             implementations: Vec::new(),
+            stored: None,
             typical_load,
             inverter: None,
             buffer: None,
@@ -146,7 +156,7 @@ impl MatchTable {
         }
         if best.is_none() && !complement {
             let inv = self.inverter?;
-            let g = self.implementations[inv as usize].gates[0].clone();
+            let g = self.implementation(inv).gates[0].clone();
             let mut second = g.clone();
             second.inputs = second
                 .inputs
@@ -159,7 +169,7 @@ impl MatchTable {
             best = Implementation::new(lib, vec![g, second]);
         }
         let imp = best?;
-        self.implementations.push(imp);
+        self.implementations.push(OnceLock::from(imp));
         Some((self.implementations.len() - 1) as u32)
     }
 
@@ -191,7 +201,7 @@ impl MatchTable {
                 let imp = if i == id {
                     &imp
                 } else {
-                    &self.implementations[i as usize]
+                    self.implementation(i)
                 };
                 (
                     KeepCosts::of(imp, self.inverter_area, self.typical_load),
@@ -203,29 +213,9 @@ impl MatchTable {
         if !list.contains(&id) {
             return;
         }
-        self.implementations.push(imp);
+        self.implementations.push(OnceLock::from(imp));
         self.slots[slot as usize] = list;
         self.area_kept[slot as usize] = area_kept;
-    }
-
-    /// Recounts, for every slot, how many leading candidates the least-area
-    /// cover reads (after a table is read back from the cache, where the
-    /// lists are stored in order but the counts are not).
-    pub(super) fn recount_area_kept(&mut self) {
-        self.area_kept = self
-            .slots
-            .iter()
-            .map(|list| {
-                let costs = |i: u32| {
-                    let imp = &self.implementations[i as usize];
-                    (
-                        KeepCosts::of(imp, self.inverter_area, self.typical_load),
-                        imp.leaf_phases(),
-                    )
-                };
-                order_candidates(list, costs).1
-            })
-            .collect();
     }
 
     fn slot_or_insert(&mut self, f: u64) -> u32 {
@@ -269,7 +259,18 @@ impl MatchTable {
     /// The implementation with id `id`.
     #[inline]
     pub fn implementation(&self, id: u32) -> &Implementation {
-        &self.implementations[id as usize]
+        self.implementations[id as usize].get_or_init(|| {
+            let stored = self
+                .stored
+                .as_ref()
+                .expect("only a table read from the cache has unbuilt implementations");
+            stored.build(id)
+        })
+    }
+
+    /// Number of implementations (built or not).
+    pub fn num_implementations(&self) -> usize {
+        self.implementations.len()
     }
 
     /// The cheapest implementation by area of `f`, if any.
@@ -380,4 +381,36 @@ fn order_candidates(ids: &[u32], costs: impl Fn(u32) -> (KeepCosts, u16)) -> (Ve
         area.push(fastest);
     }
     (area, count)
+}
+
+/// The implementations of a table read from the cache, as their gate lists
+/// in the file's encoding (see `table_cache`), each already checked on load
+/// to be well formed and to compute its stored function; so building one
+/// cannot fail.
+pub struct StoredGates {
+    /// The library the gates are cells of.
+    pub(super) lib: Library,
+    /// The file's implementation records.
+    pub(super) bytes: Vec<u8>,
+    /// Offset in `bytes` of the gate count of implementation `id`.
+    pub(super) offsets: Vec<u32>,
+}
+
+impl std::fmt::Debug for StoredGates {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("StoredGates")
+            .field("library", &self.lib.name)
+            .field("implementations", &self.offsets.len())
+            .finish()
+    }
+}
+
+impl StoredGates {
+    /// The implementation `id` built from its stored gates.
+    fn build(&self, id: u32) -> Implementation {
+        let mut at = self.offsets[id as usize] as usize;
+        let gates = super::table_cache::read_gates(&self.bytes, &mut at)
+            .expect("stored gates were checked on load");
+        Implementation::new(&self.lib, gates).expect("stored gates were checked on load")
+    }
 }

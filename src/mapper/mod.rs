@@ -167,25 +167,61 @@ pub fn map(net: &Network, lib: &Library, opts: &MapOptions) -> Result<MappedNetl
     map_detailed(net, lib, opts).map(|o| o.netlist)
 }
 
-/// The match table of `lib`, built once per process and library and shared
-/// (and kept on disk between processes, see [`table_cache`]).
-pub fn match_table(lib: &Library) -> Arc<MatchTable> {
-    type Cache = Mutex<Vec<(Library, Arc<MatchTable>)>>;
+/// One library's match table, made once: callers asking while another
+/// thread makes it wait for that one.
+type TableCell = Arc<OnceLock<Arc<MatchTable>>>;
+
+/// The cell of `lib`'s table in the process-wide list, and whether it was
+/// just added (nobody has started making the table yet).
+fn table_cell(lib: &Library) -> (TableCell, bool) {
+    type Cache = Mutex<Vec<(Library, TableCell)>>;
     static CACHE: OnceLock<Cache> = OnceLock::new();
     let cache = CACHE.get_or_init(|| Mutex::new(Vec::new()));
-    {
-        let guard = cache.lock().unwrap_or_else(|e| e.into_inner());
-        if let Some((_, t)) = guard.iter().find(|(l, _)| l == lib) {
-            return t.clone();
-        }
-    }
-    let table = Arc::new(table_cache::load_or_build(lib));
     let mut guard = cache.lock().unwrap_or_else(|e| e.into_inner());
+    if let Some((_, cell)) = guard.iter().find(|(l, _)| l == lib) {
+        return (cell.clone(), false);
+    }
     if guard.len() >= 8 {
         guard.remove(0);
     }
-    guard.push((lib.clone(), table.clone()));
-    table
+    let cell = TableCell::default();
+    guard.push((lib.clone(), cell.clone()));
+    (cell, true)
+}
+
+/// The match table of `lib`, built once per process and library and shared
+/// (and kept on disk between processes, see [`table_cache`]).
+pub fn match_table(lib: &Library) -> Arc<MatchTable> {
+    let (cell, _) = table_cell(lib);
+    cell.get_or_init(|| Arc::new(table_cache::load_or_build(lib)))
+        .clone()
+}
+
+/// Starts making, on a thread of its own, the tables of the built-in
+/// libraries inside `lib` whose runs join the pool ([`runs`]), so that
+/// they are read or built while this thread makes `lib`'s own table and
+/// maps with it. Tables already made or started are left alone, and a
+/// thread that cannot be started only means they are made when asked for.
+fn start_sub_library_tables(lib: &Library) {
+    let mut fresh = Vec::new();
+    let mut outer = lib.clone();
+    while let Some(sub) = runs::largest_builtin_subset(&outer) {
+        let (cell, new) = table_cell(&sub);
+        if new {
+            fresh.push((sub.clone(), cell));
+        }
+        outer = sub;
+    }
+    if fresh.is_empty() {
+        return;
+    }
+    let _ = std::thread::Builder::new()
+        .name("sub-library tables".into())
+        .spawn(move || {
+            for (sub, cell) in fresh {
+                cell.get_or_init(|| Arc::new(table_cache::load_or_build(&sub)));
+            }
+        });
 }
 
 /// Widest cell whose function is an AND (in any input and output phase),
@@ -265,6 +301,7 @@ pub fn map_detailed(
     }
     let mut seconds = IndexMap::new();
     let t = Instant::now();
+    start_sub_library_tables(lib);
     let table = match_table(lib);
     seconds.insert("match".to_string(), t.elapsed().as_secs_f64());
 

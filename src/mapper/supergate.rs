@@ -52,14 +52,25 @@ const NONE: u32 = u32::MAX;
 const AREA_TIE: f32 = 1e-6;
 
 impl<'a> Generator<'a> {
-    /// Whether an implementation of `f` with these costs would become one of
-    /// the kept ones (for the leaf-phase alternatives: whether its area ties
-    /// the least so far).
-    fn better(&self, f: u16, costs: &KeepCosts) -> bool {
+    /// Whether an implementation of `f` with these costs, reading the leaf
+    /// phases `phases` (as [`Implementation::leaf_phases`]), would become
+    /// one of the kept ones: it beats one under a criterion, or its area
+    /// ties the least so far with a set of leaf phases not seen yet. Asked
+    /// before the implementation is built, so that [`Generator::offer`]
+    /// builds only likely keepers.
+    fn better(&self, f: u16, costs: &KeepCosts, phases: u16) -> bool {
         self.beats_a_criterion(f, costs) || {
             let id = self.best[CHEAPEST][f as usize];
-            costs.area <= self.costs[id as usize].1.area + AREA_TIE
+            costs.area <= self.costs[id as usize].1.area + AREA_TIE && self.new_phases(f, phases)
         }
+    }
+
+    /// Whether no least-area implementation of `f` kept so far reads
+    /// exactly the leaf phases `phases`.
+    fn new_phases(&self, f: u16, phases: u16) -> bool {
+        self.ties
+            .get(&f)
+            .is_none_or(|t| t.iter().all(|&(p, _)| p != phases))
     }
 
     /// Whether an implementation of `f` with these costs beats a kept one
@@ -85,11 +96,7 @@ impl<'a> Generator<'a> {
             self.costs[cheapest as usize].1.area
         };
         let tie = costs.area <= least + AREA_TIE;
-        let new_phases = tie
-            && self
-                .ties
-                .get(&f)
-                .is_none_or(|t| t.iter().all(|&(p, _)| p != phases));
+        let new_phases = tie && self.new_phases(f, phases);
         if !new_phases && !self.beats_a_criterion(f, &costs) {
             return;
         }
@@ -145,6 +152,15 @@ fn atoms() -> Vec<(Source, u16)> {
     a.push((Source::Constant(false), 0));
     a.push((Source::Constant(true), u16::MAX));
     a
+}
+
+/// The leaf phases (as [`Implementation::leaf_phases`]) the atoms `t`
+/// read.
+fn atom_phases(atoms: &[(Source, u16)], t: &[usize]) -> u16 {
+    t.iter().fold(0, |m, &i| match atoms[i].0 {
+        Source::Leaf { var, complemented } => m | 1 << (2 * var as u16 + complemented as u16),
+        _ => m,
+    })
 }
 
 fn is_atomic(f: u16) -> bool {
@@ -233,7 +249,11 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
             }
             let area = cell.area as f32;
             let delay = (cell.delay.intrinsic + cell.delay.per_load * typical_load as f64) as f32;
-            if g.better(f, &KeepCosts::before_leaves(area, delay)) {
+            if g.better(
+                f,
+                &KeepCosts::before_leaves(area, delay),
+                atom_phases(&atoms, t),
+            ) {
                 g.offer(vec![ImplGate {
                     cell: c as u32,
                     inputs: t.iter().map(|&i| atoms[i].0).collect(),
@@ -277,6 +297,10 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
                         let base_area = cell.area as f32
                             + g.costs[c1 as usize].1.area
                             + g.costs[c2 as usize].1.area;
+                        let d1 = g.impls[c1 as usize].delay(cell.input_load as f32);
+                        let d2 = g.impls[c2 as usize].delay(cell.input_load as f32);
+                        let kid_phases =
+                            g.impls[c1 as usize].leaf_phases() | g.impls[c2 as usize].leaf_phases();
                         for_each_tuple(rest, atoms.len(), |t| {
                             let mut k = 0;
                             for (pin, slot) in ins.iter_mut().enumerate().take(a) {
@@ -293,12 +317,11 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
                             if is_atomic(f) {
                                 return;
                             }
-                            let d1 = g.impls[c1 as usize].delay(cell.input_load as f32);
-                            let d2 = g.impls[c2 as usize].delay(cell.input_load as f32);
                             let delay = d1.max(d2)
                                 + (cell.delay.intrinsic + cell.delay.per_load * typical_load as f64)
                                     as f32;
-                            if !g.better(f, &KeepCosts::before_leaves(base_area, delay)) {
+                            let phases = kid_phases | atom_phases(&atoms, t);
+                            if !g.better(f, &KeepCosts::before_leaves(base_area, delay), phases) {
                                 return;
                             }
                             let g1 = g.impls[c1 as usize].gates.clone();
@@ -339,14 +362,10 @@ pub fn generate(lib: &Library, typical_load: f32) -> Vec<Implementation> {
     compose_one_child(&mut g, &narrow, &level2, &atoms);
 
     // Collect the survivors: best by area, by delay and by area with
-    // complemented leaves paid for, per function.
+    // complemented leaves paid for, per function (repeats go below).
     let mut keep: Vec<u32> = Vec::new();
     for f in 0..(1usize << 16) {
-        for id in g.best.iter().map(|best| best[f]) {
-            if id != NONE && !keep.contains(&id) {
-                keep.push(id);
-            }
-        }
+        keep.extend(g.best.iter().map(|best| best[f]).filter(|&id| id != NONE));
         if let Some(ties) = g.ties.get(&(f as u16)) {
             keep.extend(ties.iter().map(|&(_, id)| id));
         }
@@ -387,6 +406,7 @@ fn compose_one_child(g: &mut Generator, roots: &[usize], kids: &[u32], atoms: &[
                 let fc = g.costs[child as usize].0;
                 let area = cell.area as f32 + g.costs[child as usize].1.area;
                 let dc = g.impls[child as usize].delay(cell.input_load as f32);
+                let kid_phases = g.impls[child as usize].leaf_phases();
                 let delay = dc + (cell.delay.intrinsic + cell.delay.per_load * load as f64) as f32;
                 for_each_tuple(a - 1, atoms.len(), |t| {
                     let mut k = 0;
@@ -399,7 +419,11 @@ fn compose_one_child(g: &mut Generator, roots: &[usize], kids: &[u32], atoms: &[
                         };
                     }
                     let f = eval16(cell.truth, &ins[..a]);
-                    if is_atomic(f) || !g.better(f, &KeepCosts::before_leaves(area, delay)) {
+                    if is_atomic(f) {
+                        return;
+                    }
+                    let phases = kid_phases | atom_phases(atoms, t);
+                    if !g.better(f, &KeepCosts::before_leaves(area, delay), phases) {
                         return;
                     }
                     let mut gates = g.impls[child as usize].gates.clone();
