@@ -18,6 +18,9 @@ fn root() -> &'static Path {
     Path::new(env!("CARGO_MANIFEST_DIR"))
 }
 
+/// Which cells of ribbon3 a library keeps.
+type Keep = fn(&Cell) -> bool;
+
 /// ribbon3 as it was typed in by hand, before it became the demo kit's
 /// characterisation.
 fn previous() -> Library {
@@ -56,7 +59,7 @@ fn derived_libraries_keep_the_previous_cell_names_and_units() {
     // The earlier ribbon3-nomaj was ribbon3 without maj3 and minority3, the
     // earlier ribbon2 its cells of at most two inputs (libraries/README.md).
     let before = previous();
-    let rules: [(&str, fn(&Cell) -> bool); 3] = [
+    let rules: [(&str, Keep); 3] = [
         ("ribbon3", |_| true),
         ("ribbon3-nomaj", |c| {
             !matches!(c.name.as_str(), "maj3" | "minority3")
