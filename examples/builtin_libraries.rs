@@ -1,11 +1,12 @@
-//! Regenerates the demo-kit ribbon libraries `libraries/demo-kit-ribbon3.json`,
-//! `libraries/demo-kit-ribbon3-nomaj.json` and `libraries/demo-kit-ribbon2.json`
-//! (the cell sets of the built-in ribbon libraries) by characterising the INVENTED demo kit `libraries/devices/demo/demo.json`
+//! Regenerates the built-in ribbon libraries `libraries/ribbon3.json`,
+//! `libraries/ribbon3-nomaj.json` and `libraries/ribbon2.json` by
+//! characterising the INVENTED demo kit `libraries/devices/demo/demo.json`
 //! (see `ribbonmap::device::demo_builtins` for which cells each keeps).
 //!
 //! Run from anywhere: `cargo run --example builtin_libraries` (writes into
 //! the repository). `tests/library_derived.rs` fails until the
-//! files equal a fresh characterisation.
+//! embedded built-ins equal a fresh characterisation (rebuild after running
+//! this: the binary embeds the files).
 
 use ribbonmap::device::demo_builtins::{derived_builtin_texts, LIBRARY_DIR};
 use std::path::Path;
@@ -20,7 +21,7 @@ fn main() {
         }
     };
     for (name, text) in texts {
-        let path = root.join(LIBRARY_DIR).join(format!("demo-kit-{name}.json"));
+        let path = root.join(LIBRARY_DIR).join(format!("{name}.json"));
         if let Err(e) = std::fs::write(&path, text) {
             eprintln!("error: {}: cannot write: {e}", path.display());
             std::process::exit(2);

@@ -167,9 +167,6 @@ fn library_list_names_every_built_in_library_with_its_cell_count() {
             let p = e.unwrap().path();
             (p.extension()? == "json").then(|| p.file_stem().unwrap().to_str().unwrap().to_string())
         })
-        // The demo-kit characterisations are files to load, not built-ins
-        // (libraries/README.md).
-        .filter(|stem| !stem.starts_with("demo-kit-"))
         .collect();
     files.sort();
     assert_eq!(names, files);

@@ -23,8 +23,9 @@ fn stderr(out: &std::process::Output) -> String {
 }
 
 const C17: &str = "tests/data/reference/netlists/iscas85/c17.v";
-/// A characterised library of the repository (levels, spice).
-const DEMO_LIB: &str = "libraries/demo-kit-ribbon3.json";
+/// A characterised library (levels, spice): the built-in ribbon3, derived
+/// from the demo kit.
+const DEMO_LIB: &str = "ribbon3";
 
 #[test]
 fn each_format_option_lists_exactly_what_the_command_prints() {

@@ -788,7 +788,8 @@ fn study_and_compare_min_margin_equal_map_min_margin() {
 }
 
 /// Bad input (exit 2, one line naming the plan's line): `min_margin` on a
-/// library without electrical data, and a negative `min_margin`.
+/// library without electrical data (the built-in nand-nor-inv), and a
+/// negative `min_margin`.
 #[test]
 fn plan_min_margin_bad_input() {
     let dir = tempfile::tempdir().unwrap();
@@ -801,7 +802,7 @@ fn plan_min_margin_bad_input() {
         ("\"min_margin\": -5", "non-negative"),
     ] {
         let plan = format!(
-            "{{\"benchmarks\": [\"add2.blif\"],\n \"libraries\": [\"ribbon3\"],\n \"options\": {{{options}}}}}"
+            "{{\"benchmarks\": [\"add2.blif\"],\n \"libraries\": [\"nand-nor-inv\"],\n \"options\": {{{options}}}}}"
         );
         std::fs::write(dir.path().join("plan.json"), plan).unwrap();
         let out = assert_cmd::Command::cargo_bin("ribbonmap")

@@ -122,11 +122,10 @@ fn a_library_without_the_field_loads_with_zero_and_one_with_it_keeps_it() {
 
 #[test]
 fn the_characterised_library_carries_half_c_v_squared_per_unit_load() {
-    // The demo kit: unit load 30 aF, supply 0.2 V, inv output 40 aF.
+    // The built-in ribbon3 is the demo kit's characterisation: unit load
+    // 30 aF, supply 0.2 V, inv output 40 aF (libraries/devices/demo/demo.json).
     // ½·30·0.2² = 0.6 aJ per unit load; ½·40·0.2² = 0.8 aJ own.
-    let path =
-        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("libraries/demo-kit-ribbon3.json");
-    let lib = Library::load(&path).unwrap();
+    let lib = Library::builtin("ribbon3").unwrap();
     let inv = lib.cell("inv").unwrap();
     assert!((inv.switch_energy_per_load - 0.6).abs() < 1e-9);
     assert!((inv.switch_energy - 0.8).abs() < 1e-9);

@@ -120,14 +120,18 @@ fn ribbon_cells_have_two_devices_and_consistent_costs() {
     assert!(lib.cells.iter().all(|c| c.devices == 2));
     assert_eq!(lib.storage.len(), 1);
     let c = |n: &str| lib.cell(n).unwrap().clone();
-    // Three-input cells larger and slower than two-input ones; majority and
-    // three-input XOR dearer than AND3.
+    // Areas are the demo kit's (libraries/devices/demo/demo.json, invented):
+    // three-input cells larger than two-input ones, majority and three-input
+    // XOR dearer than AND3, a cell and its complement alike. Delays, energies
+    // and leakage are derived from the kit's tables; tests/library_derived.rs
+    // checks them against a fresh characterisation.
     assert!(c("and3").area > c("and2").area);
-    assert!(c("and3").delay.intrinsic > c("and2").delay.intrinsic);
     assert!(c("maj3").area > c("and3").area);
     assert!(c("xor3").area > c("maj3").area);
-    assert!(c("maj3").switch_energy > c("and3").switch_energy);
-    assert!(lib.description.contains("illustrative"));
+    for (a, b) in [("and2", "nand2"), ("maj3", "minority3"), ("xor3", "xnor3")] {
+        assert_eq!(c(a).area, c(b).area, "{a} and {b}");
+    }
+    assert!(lib.description.contains("INVENTED demo kit"));
 }
 
 #[test]

@@ -234,15 +234,24 @@ fn goals_and_subsets_hold_on_every_benchmark_and_reference_circuit() {
     ignore = "maps EPFL bar three times; runs under cargo test --release"
 )]
 fn bar_on_ribbon3_delay_goal_is_faster_and_balanced_stays_small() {
-    // The built-in ribbon3's hand-typed numbers.
-    check_bar_goals(&builtin("ribbon3"));
+    // ribbon3's earlier hand-typed numbers (test data since the built-in
+    // became the demo kit's characterisation).
+    let path = Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/data/libraries/ribbon3-illustrative.json");
+    check_bar_goals(&Library::load(&path).expect("loads"));
 }
 
 #[test]
-#[ignore = "known gap: on the ribbon3 cells derived from the demo kit, balanced takes 248,434 nm2 against the area goal's 179,612 (1.38 x, over the 1.25 x bound); area recovery within the delay bounds misses on these delays (the least-area run itself no longer depends on delays, tests/map_delay_blind.rs)"]
+#[cfg_attr(
+    debug_assertions,
+    ignore = "maps EPFL bar three times; runs under cargo test --release"
+)]
 fn bar_on_derived_ribbon3_delay_goal_is_faster_and_balanced_stays_small() {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("libraries/demo-kit-ribbon3.json");
-    check_bar_goals(&Library::load(&path).expect("loads"));
+    // The built-in ribbon3, characterised from the demo kit (measured:
+    // area goal 179,612 nm2 at 288.6 ps, delay goal 182.2 ps, balanced
+    // 192,664 nm2 = 1.07 x, won by the ribbon2 sub-library's area cover with
+    // buffers).
+    check_bar_goals(&builtin("ribbon3"));
 }
 
 /// EPFL bar.v (tests/data/reference, PROVENANCE.md) on `lib`: the delay

@@ -20,7 +20,7 @@ use crate::library::electrical::{ElectricalData, TableRecord};
 use crate::library::Library;
 use crate::netlist::{Driver, MappedNetlist};
 use std::fmt::Write;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 /// The tables and capacitances of one cell, as a deck needs them.
 #[derive(Clone, Debug)]
@@ -114,17 +114,16 @@ pub fn load_models(
 
 /// Loads the tables and electrical data of the characterised library `lib`
 /// loaded from `lib_spec` (a file, or a built-in name whose tables lie under
-/// `libraries/`); the error is one line for the user.
+/// `libraries/`, see [`builtin_library_dir`]); the error is one line for the
+/// user.
 pub fn load_spec_models(
     lib: &Library,
     lib_spec: &str,
 ) -> Result<(DeckModels, ElectricalData), String> {
     let (text, dir, shown) = if let Some(text) = crate::library::builtin_text(lib_spec) {
-        (
-            text.to_string(),
-            std::path::PathBuf::from("libraries"),
-            format!("<builtin:{lib_spec}>"),
-        )
+        let data = crate::library::electrical::read_electrical(text);
+        let dir = builtin_library_dir(lib_spec, &data)?;
+        (text.to_string(), dir, format!("<builtin:{lib_spec}>"))
     } else {
         let path = Path::new(lib_spec);
         let bytes = std::fs::read(path).map_err(|e| format!("{lib_spec}: cannot read: {e}"))?;
@@ -135,6 +134,33 @@ pub fn load_spec_models(
     let data = crate::library::electrical::read_electrical(&text);
     let models = load_models(lib, &data, &dir, &shown).map_err(|e| e.to_string())?;
     Ok((models, data))
+}
+
+/// The folder the table paths of the built-in library `name` are relative
+/// to. The binary embeds the library files but not their conductance tables
+/// (files under `libraries/devices/`), so they are looked for in
+/// `libraries/` below the current folder, then in the source tree the
+/// binary was built from; when neither holds them the error says so and
+/// what to do.
+pub fn builtin_library_dir(name: &str, data: &ElectricalData) -> Result<PathBuf, String> {
+    let Some(first) = data.cells.first().map(|(_, e)| &e.pull_up.file) else {
+        return Ok(PathBuf::from("libraries"));
+    };
+    let candidates = [
+        PathBuf::from("libraries"),
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("libraries"),
+    ];
+    candidates
+        .iter()
+        .find(|dir| dir.join(first).is_file())
+        .cloned()
+        .ok_or_else(|| {
+            format!(
+                "<builtin:{name}>: the conductance tables of the built-in library are not in the binary and {first} is in neither {} nor {}: run from the repository's root, or pass the library file (libraries/{name}.json, beside its devices/ folder) to --lib",
+                candidates[0].display(),
+                candidates[1].display()
+            )
+        })
 }
 
 /// What drives the primary inputs.
