@@ -438,7 +438,10 @@ pub fn map_detailed(
     }
     let t = Instant::now();
     for base in bases {
-        runs.extend(buffered_runs(&runs[base], lib));
+        // A sub-library's run with trees already had its splitting.
+        if !runs[base].name.contains("+buffers") {
+            runs.extend(buffered_runs(&runs[base], lib));
+        }
     }
     seconds.insert("fanout".to_string(), t.elapsed().as_secs_f64());
     let won = runs::pick(&runs, opts.goal);
