@@ -12,8 +12,8 @@
 //!    estimate: its readers are ordered by required time, the first `k`
 //!    stay on the net, the rest read a copy of it, and `k` is chosen for the
 //!    best worst slack (primary outputs stay on the net). The copy is either
-//!    a buffer reading the net, or a duplicate of the net's driver over the
-//!    same inputs (one stage less, where those inputs have the slack to
+//!    a buffer reading the net (when the library has one), or a duplicate
+//!    of the net's driver over the same inputs (one stage less, where those inputs have the slack to
 //!    carry one more pin);
 //! 3. keep the split when the delay of the whole netlist falls, or stays
 //!    while the sum of the outputs' arrivals falls (several equally
@@ -109,6 +109,8 @@ struct Split {
     groups: Vec<Vec<(usize, usize)>>,
     gain: f64,
     kind: CopyKind,
+    /// The cell of the copies: the buffer, or the driver's cell.
+    cell: u32,
 }
 
 /// Tries (kept or undone) in a row that leave the delay where it was,
@@ -150,7 +152,7 @@ fn may_duplicate(nl: &MappedNetlist, lib: &Library, driver: usize, t: &Timing) -
 fn plan(
     nl: &MappedNetlist,
     lib: &Library,
-    buffer: u32,
+    buffer: Option<u32>,
     (net, driver): (NetId, usize),
     fanouts: &Fanouts,
     t: &Timing,
@@ -175,7 +177,7 @@ fn plan(
         prefix.push(prefix[prefix.len() - 1] + r.3);
     }
     let cell = &lib.cells[nl.instances[driver].cell as usize];
-    let buf = &lib.cells[buffer as usize];
+    let buf = buffer.map(|b| &lib.cells[b as usize]);
     let pin_loads = prefix[readers.len()];
     let ends = t.load[n] - pin_loads;
     let ends_req = if ends > 1e-12 {
@@ -195,15 +197,14 @@ fn plan(
             // A duplicate left with no reader on the original would only
             // move the net.
             let kinds = [
-                (CopyKind::Buffer, buf.input_load, buf.area),
-                (CopyKind::Duplicate, 0.0, cell.area),
+                buf.map(|b| (CopyKind::Buffer, b.input_load, b.area)),
+                (duplicate && (keep > 0 || ends > 1e-12)).then_some((
+                    CopyKind::Duplicate,
+                    0.0,
+                    cell.area,
+                )),
             ];
-            let count = if duplicate && (keep > 0 || ends > 1e-12) {
-                2
-            } else {
-                1
-            };
-            for &(kind, extra, area) in &kinds[..count] {
+            for &(kind, extra, area) in kinds.iter().flatten() {
                 let root = start
                     + cell.delay.intrinsic
                     + cell.delay.per_load * (prefix[keep] + ends + m as f64 * extra);
@@ -214,11 +215,9 @@ fn plan(
                 for g in 0..m {
                     let (from, to) = (keep + g * rest / m, keep + (g + 1) * rest / m);
                     let load = prefix[to] - prefix[from];
-                    let leaf = match kind {
-                        CopyKind::Buffer => root + buf.delay.intrinsic + buf.delay.per_load * load,
-                        CopyKind::Duplicate => {
-                            start + cell.delay.intrinsic + cell.delay.per_load * load
-                        }
+                    let leaf = match buf.filter(|_| kind == CopyKind::Buffer) {
+                        Some(b) => root + b.delay.intrinsic + b.delay.per_load * load,
+                        None => start + cell.delay.intrinsic + cell.delay.per_load * load,
                     };
                     slack = slack.min(readers[from].0 - leaf);
                 }
@@ -248,17 +247,16 @@ fn plan(
             .collect(),
         gain,
         kind,
+        cell: match (kind, buffer) {
+            (CopyKind::Buffer, Some(b)) => b,
+            _ => nl.instances[driver].cell,
+        },
     })
 }
 
 /// Inserts the copies of `split` right after its driver; returns their
 /// nets.
-fn apply(
-    nl: &mut MappedNetlist,
-    buffer: u32,
-    split: &Split,
-    names: &mut HashSet<String>,
-) -> Vec<NetId> {
+fn apply(nl: &mut MappedNetlist, split: &Split, names: &mut HashSet<String>) -> Vec<NetId> {
     let at = split.driver + 1;
     let m = split.groups.len();
     let first = nl.nets.len();
@@ -269,12 +267,10 @@ fn apply(
             }
         }
     }
-    let (cell, inputs) = match split.kind {
-        CopyKind::Buffer => (buffer, vec![split.net]),
-        CopyKind::Duplicate => {
-            let d = &nl.instances[split.driver];
-            (d.cell, d.inputs.clone())
-        }
+    let cell = split.cell;
+    let inputs = match split.kind {
+        CopyKind::Buffer => vec![split.net],
+        CopyKind::Duplicate => nl.instances[split.driver].inputs.clone(),
     };
     let mut made = Vec::with_capacity(m);
     for (g, group) in split.groups.iter().enumerate() {
@@ -349,9 +345,10 @@ fn total_arrival(nl: &MappedNetlist, arrival: &[f64]) -> f64 {
 
 /// `nl` with fanout trees on critical nets whose splitting lowers the
 /// delay (or, at equal delay, the outputs' total arrival), or `None` when
-/// no split helps (or the library has no buffer).
+/// no split helps. A library without a buffer cell gets duplicated drivers
+/// only.
 pub fn split_critical_loads(nl: &MappedNetlist, lib: &Library) -> Option<Buffered> {
-    let buffer = buffer_cell(lib)?;
+    let buffer = buffer_cell(lib);
     let limit = max_copies(nl.instances.len());
     let mut cur = nl.clone();
     let mut copies = Vec::new();
@@ -399,7 +396,7 @@ pub fn split_critical_loads(nl: &MappedNetlist, lib: &Library) -> Option<Buffere
         let Some(split) = best else {
             break;
         };
-        let made = apply(&mut cur, buffer, &split, &mut names);
+        let made = apply(&mut cur, &split, &mut names);
         let after = analyze_timing(&cur, lib);
         let after_total = total_arrival(&cur, &after.arrival);
         let faster = after.delay < timing.delay - tolerance;
@@ -435,7 +432,7 @@ pub fn split_critical_loads(nl: &MappedNetlist, lib: &Library) -> Option<Buffere
     }
     if trace.len() < splits.len() {
         let keep = trace.len();
-        return replay(nl, lib, &splits[..keep], trace);
+        return replay(nl, &splits[..keep], trace);
     }
     (!copies.is_empty()).then_some(Buffered {
         netlist: cur,
@@ -447,13 +444,7 @@ pub fn split_critical_loads(nl: &MappedNetlist, lib: &Library) -> Option<Buffere
 
 /// `nl` with `splits` applied in order (as recorded by
 /// [`split_critical_loads`] on `nl`), or `None` when there are none.
-fn replay(
-    nl: &MappedNetlist,
-    lib: &Library,
-    splits: &[Split],
-    mut trace: Vec<(f64, f64)>,
-) -> Option<Buffered> {
-    let buffer = buffer_cell(lib)?;
+fn replay(nl: &MappedNetlist, splits: &[Split], mut trace: Vec<(f64, f64)>) -> Option<Buffered> {
     if splits.is_empty() {
         return None;
     }
@@ -461,7 +452,7 @@ fn replay(
     let mut names: HashSet<String> = cur.nets.iter().map(|n| n.name.clone()).collect();
     let mut copies = Vec::with_capacity(splits.len());
     for split in splits {
-        for net in apply(&mut cur, buffer, split, &mut names) {
+        for net in apply(&mut cur, split, &mut names) {
             copies.push(NetCopy {
                 net,
                 source: split.net,
@@ -493,7 +484,7 @@ impl Buffered {
         if best.1 == 0 || best.1 == self.splits.len() {
             return None;
         }
-        replay(original, lib, &self.splits[..best.1], self.trace.clone())
+        replay(original, &self.splits[..best.1], self.trace.clone())
     }
 }
 
