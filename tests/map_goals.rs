@@ -10,7 +10,9 @@
 //! timing of the extracted netlist, area by summing cell areas. No two cells
 //! of a netlist compute the same function of the same nets (checked by
 //! exhaustive evaluation of each cell's truth table over its distinct input
-//! nets).
+//! nets), except the copies a fanout tree makes on purpose to split a load,
+//! which the mapper reports: a netlist has at most as many duplicates as
+//! reported copies, and under `area` none.
 //!
 //! Sources outside the project: the ISCAS-85 and EPFL netlists in
 //! tests/data/reference (PROVENANCE.md there); integer-arithmetic adders and
@@ -130,12 +132,15 @@ fn survey(label: &str, net: &Network) -> (Vec<[Figures; 3]>, Vec<String>) {
             delay: 0.0,
         }; 3];
         for (g, goal) in GOALS.iter().enumerate() {
-            let nl = map(net, &lib, &options(*goal)).expect("maps");
+            let out = map_detailed(net, &lib, &options(*goal)).expect("maps");
+            let nl = out.netlist;
             let d = duplicate_cells(&nl, &lib);
-            if d > 0 {
+            let allowed = if *goal == Goal::Area { 0 } else { out.buffers };
+            if d > allowed {
                 violations.push(format!(
-                    "{label} on {name} ({}): {d} duplicate cells",
-                    goal.name()
+                    "{label} on {name} ({}): {d} duplicate cells, {} reported copies",
+                    goal.name(),
+                    out.buffers
                 ));
             }
             per_goal[g] = Figures::of(&nl, &lib);

@@ -19,8 +19,9 @@
 //!    the run with the least area, delay, or area × delay (within a
 //!    tolerance that keeps the smaller circuit in a near-tie). One of the
 //!    runs repeats the delay pass with loads from its own previous cover
-//!    (`cover::loads`), and the fastest run is also offered with fanout
-//!    trees of buffers on its critical nets ([`fanout`]).
+//!    (`cover::loads`), and the fastest and the least-area runs are also
+//!    offered with fanout trees of buffers and duplicated drivers on their
+//!    critical nets ([`fanout`]).
 //!
 //! With [`MapOptions::optimum`], [`optimum`] adds exact minimum networks of
 //! the cut functions of up to four leaves (from the exact-synthesis
@@ -67,7 +68,8 @@ pub enum Goal {
     /// Least area among the runs of [`runs`] whose area × delay is within
     /// [`runs::BALANCED_TOLERANCE`] of the least:
     /// area recovery within several delay bounds (the least delay, 10 %,
-    /// 25 % and 50 % over it, and `delay_slack` over it) and the area run.
+    /// 25 % and 50 % over it, and `delay_slack` over it) and the area run,
+    /// the fastest and the area run also with fanout trees.
     #[default]
     Balanced,
 }
@@ -146,7 +148,8 @@ pub struct MapOutcome {
     pub runs: Vec<Run>,
     /// Seconds per phase: `match` (table build, zero when cached),
     /// `restructure` (zero when off), `balance`, `cuts` (cut enumeration with the delay cover), `cover`
-    /// (area recovery and extraction).
+    /// (area recovery and extraction), `subset` (the runs of a contained
+    /// built-in library, when there is one), `fanout` (fanout trees).
     pub seconds: IndexMap<String, f64>,
     /// Nodes of the network that was covered (after balancing).
     pub covered_nodes: usize,
@@ -158,7 +161,8 @@ pub struct MapOutcome {
     /// What every net implements, for the linear-time proof
     /// ([`crate::proof::prove`]).
     pub witness: CoverWitness,
-    /// Buffers the chosen run's fanout trees added ([`fanout`]).
+    /// Buffers and duplicated drivers the chosen run's fanout trees added
+    /// ([`fanout`]).
     pub buffers: usize,
 }
 
@@ -274,6 +278,34 @@ fn recover(
     }
     cover.mark();
     cover.into_netlist_with_witness()
+}
+
+/// `run` with fanout trees ([`fanout`]): all the splits that lower its
+/// delay (`RUN+buffers`) and, when fewer give a lower area × delay, those
+/// (`RUN+buffers-trimmed`).
+fn buffered_runs(run: &Run, lib: &Library) -> Vec<Run> {
+    let Some(full) = fanout::split_critical_loads(&run.netlist, lib) else {
+        return Vec::new();
+    };
+    let trimmed = full.trimmed(&run.netlist, lib);
+    let mut out = Vec::new();
+    for (suffix, b) in [("+buffers", Some(full)), ("+buffers-trimmed", trimmed)] {
+        let Some(b) = b else {
+            continue;
+        };
+        let mut witness = run.witness.clone();
+        witness.extend_with(
+            b.netlist.nets.len(),
+            b.copies
+                .iter()
+                .map(|c| (c.net, c.source, c.kind == fanout::CopyKind::Duplicate)),
+        );
+        let mut r = Run::measure(format!("{}{suffix}", run.name), b.netlist, witness, lib);
+        // A run may have had trees already (a sub-library's `+buffers`).
+        r.buffers = run.buffers + b.copies.len();
+        out.push(r);
+    }
+    out
 }
 
 /// Maps `net` onto `lib`, returning phase timings and sizes too.
@@ -431,16 +463,24 @@ pub fn map_detailed(
         })
         .collect();
     runs.extend(sub_runs);
-    // The fastest run with fanout trees on its critical nets.
+    // Fanout trees on the critical nets of the fastest run and of the
+    // least-area run (the latter is what `balanced` often wants: the small
+    // cover with its few heavy loads split).
     let fastest = runs::pick(&runs, Goal::Delay);
-    if let Some(buffered) = fanout::split_critical_loads(&runs[fastest].netlist, lib) {
-        let mut witness = runs[fastest].witness.clone();
-        witness.extend_with_copies(buffered.netlist.nets.len(), &buffered.copies);
-        let name = format!("{}+buffers", runs[fastest].name);
-        let mut run = Run::measure(name, buffered.netlist, witness, lib);
-        run.buffers = buffered.copies.len();
-        runs.push(run);
+    let mut bases = vec![fastest];
+    if let Some(area_run) = runs.iter().position(|r| r.name == "area") {
+        if area_run != fastest {
+            bases.push(area_run);
+        }
     }
+    let t = Instant::now();
+    for base in bases {
+        // A sub-library's run with trees already had its splitting.
+        if !runs[base].name.contains("+buffers") {
+            runs.extend(buffered_runs(&runs[base], lib));
+        }
+    }
+    seconds.insert("fanout".to_string(), t.elapsed().as_secs_f64());
     let won = runs::pick(&runs, opts.goal);
     let netlist = runs[won].netlist.clone();
     let witness = runs[won].witness.clone();

@@ -20,8 +20,12 @@
 //!   digits), keeps the smaller circuit in such a near-tie.
 //!
 //! When a run's netlist has nets whose load makes them critical, the
-//! fastest run is also offered with fanout trees of buffers
-//! ([`super::fanout`]), named `RUN+buffers`.
+//! fastest run and the least-area run are also offered with fanout trees
+//! of buffers and duplicated drivers ([`super::fanout`]), named
+//! `RUN+buffers`, and with the trees cut back to the splits that give the
+//! least area × delay, `RUN+buffers-trimmed`. The latter is the trade
+//! `balanced` wants where one heavily loaded net makes a small cover slow:
+//! the small cover stays, only its critical loads are split.
 //!
 //! So by construction the delay goal is never slower than the other goals'
 //! results, the area goal never larger, balanced never more than the
@@ -38,7 +42,9 @@ use crate::netlist::{analyze_timing, MappedNetlist};
 #[derive(Clone, Debug)]
 pub struct Run {
     /// How it was made: `area`, `delay`, `delay+P%` (area recovery within
-    /// P % over the least delay), prefixed by `LIB:` for a sub-library.
+    /// P % over the least delay), `delay/loads`, each maybe followed by
+    /// `+buffers` or `+buffers-trimmed` (fanout trees), prefixed by `LIB:`
+    /// for a sub-library.
     pub name: String,
     /// The netlist, in the cells of the library being mapped.
     pub netlist: MappedNetlist,
@@ -48,7 +54,8 @@ pub struct Run {
     pub delay: f64,
     /// What every net implements, for the linear-time proof.
     pub witness: CoverWitness,
-    /// Buffers added by fanout trees (see [`super::fanout`]).
+    /// Buffers and duplicated drivers added by fanout trees (see
+    /// [`super::fanout`]).
     pub buffers: usize,
 }
 

@@ -200,19 +200,31 @@ impl CoverWitness {
     /// of its source over that literal's own node as the only leaf (a buffer
     /// is the identity), which the local check proves like any other cut.
     pub fn extend_with_copies(&mut self, nets: usize, copies: &[(u32, u32)]) {
+        self.extend_with(nets, copies.iter().map(|&(c, s)| (c, s, false)));
+    }
+
+    /// [`CoverWitness::extend_with_copies`] where each `(copy, source,
+    /// duplicate)` is either a buffer reading `source` or, when `duplicate`
+    /// is set, a duplicate of `source`'s driver over the same input nets:
+    /// such a copy carries its source's claims unchanged (the same cells
+    /// over the same leaves).
+    pub fn extend_with(&mut self, nets: usize, copies: impl IntoIterator<Item = (u32, u32, bool)>) {
         let mut pairs: Vec<(u32, Claim)> = (0..self.net_lits.len() as u32)
             .flat_map(|n| self.net_lits.of(n).iter().map(move |c| (n, *c)))
             .collect();
         let mut copied: HashMap<u32, Vec<Claim>> = HashMap::new();
-        for &(copy, source) in copies {
+        for (copy, source, duplicate) in copies {
             let from: Vec<Claim> = match copied.get(&source) {
                 Some(claims) => claims.clone(),
                 None => self.net_lits.of(source).to_vec(),
             };
-            let claims: Vec<Claim> = from
-                .iter()
-                .map(|c| Claim::cell(c.lit, &[c.literal().node().0]))
-                .collect();
+            let claims: Vec<Claim> = if duplicate {
+                from
+            } else {
+                from.iter()
+                    .map(|c| Claim::cell(c.lit, &[c.literal().node().0]))
+                    .collect()
+            };
             pairs.extend(claims.iter().map(|c| (copy, *c)));
             copied.insert(copy, claims);
         }
