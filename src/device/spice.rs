@@ -120,18 +120,28 @@ pub fn load_spec_models(
     lib: &Library,
     lib_spec: &str,
 ) -> Result<(DeckModels, ElectricalData), String> {
-    let (text, dir, shown) = if let Some(text) = crate::library::builtin_text(lib_spec) {
-        let data = crate::library::electrical::read_electrical(text);
-        let dir = builtin_library_dir(lib_spec, &data)?;
-        (text.to_string(), dir, format!("<builtin:{lib_spec}>"))
-    } else {
-        let path = Path::new(lib_spec);
-        let bytes = std::fs::read(path).map_err(|e| format!("{lib_spec}: cannot read: {e}"))?;
-        let text = crate::diag::utf8_text(lib_spec, bytes).map_err(|e| e.to_string())?;
-        let dir = path.parent().map(Path::to_path_buf).unwrap_or_default();
-        (text, dir, lib_spec.to_string())
+    let builtin = crate::library::builtin_text(lib_spec);
+    let text = match builtin {
+        Some(text) => text.to_string(),
+        None => {
+            let bytes =
+                std::fs::read(lib_spec).map_err(|e| format!("{lib_spec}: cannot read: {e}"))?;
+            crate::diag::utf8_text(lib_spec, bytes).map_err(|e| e.to_string())?
+        }
     };
     let data = crate::library::electrical::read_electrical(&text);
+    let (dir, shown) = if builtin.is_some() {
+        (
+            builtin_library_dir(lib_spec, &data)?,
+            format!("<builtin:{lib_spec}>"),
+        )
+    } else {
+        let dir = Path::new(lib_spec)
+            .parent()
+            .map(Path::to_path_buf)
+            .unwrap_or_default();
+        (dir, lib_spec.to_string())
+    };
     let models = load_models(lib, &data, &dir, &shown).map_err(|e| e.to_string())?;
     Ok((models, data))
 }

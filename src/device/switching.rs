@@ -140,7 +140,7 @@ impl Stage<'_> {
         let v = self.volts(arc, input_v);
         let gu = self.pull_up.conductance(&v);
         let gd = self.pull_down.conductance(&v);
-        self.supply_v * gu / (gu + gd)
+        super::transfer::divider(self.supply_v, gu, gd).output_v
     }
 
     /// The output waveform while the switching input follows `input`,
